@@ -210,6 +210,8 @@ export interface GlobalGroupResult {
 export interface SampleResult {
   schemaVersion: string;
   sample: string;
+  /** Data row of the manifest this sample came from (1 = first row after the header); keeps batch order across shards. */
+  manifestRow?: number;
   status: SampleStatus;
   /** The error that stopped this sample, when status is 'failed'. */
   error?: string;
