@@ -173,6 +173,8 @@ export interface StricklerBergResult {
   bandChoice: string;
   /** What was assumed about the emission spectrum's ordinate (photons per nm, per cm⁻¹, energy per nm). */
   emissionAssumption: string;
+  /** How the result was reached and what it assumes (conventions, Jacobians, refractive-index model). */
+  notes?: string[];
   /** With a measured Φ and τ. */
   qySb?: number;
   krRatio?: number;
