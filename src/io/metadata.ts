@@ -1,0 +1,162 @@
+import { InputError } from '../errors.js';
+import { NS_PER, type TimeUnit } from '../../shared/units.js';
+
+/**
+ * Reading numbers out of `# key: value` metadata. Keys arrive normalised (lower case, spaces → `_`).
+ * A key may carry its unit (`bin_width_ps: 12.2`) or its value may (`bin_width: 12.2 ps`); a key
+ * without a unit and a value without one is refused rather than guessed.
+ */
+
+const TIME_UNITS: Record<string, TimeUnit> = {
+  fs: 'fs',
+  ps: 'ps',
+  ns: 'ns',
+  us: 'us',
+  µs: 'us',
+  μs: 'us',
+  ms: 'ms',
+  s: 's',
+};
+const RATE_HZ: Record<string, number> = { hz: 1, khz: 1e3, mhz: 1e6, ghz: 1e9 };
+
+const BIN_WIDTH_STEMS = [
+  'bin_width',
+  'binwidth',
+  'bin_size',
+  'channel_width',
+  'time_per_channel',
+  'resolution',
+  'time_resolution',
+  'tac_resolution',
+];
+const PERIOD_STEMS = ['period', 'rep_period', 'repetition_period', 'pulse_period', 'sync_period'];
+const RATE_STEMS = ['rep_rate', 'repetition_rate', 'pulse_rate', 'sync_rate', 'laser_rate', 'repetition_frequency'];
+
+/** Where the metadata came from, so that a bad value can be pointed at. */
+export interface MetadataContext {
+  source?: string;
+  lines?: Record<string, number>;
+}
+
+interface Found {
+  key: string;
+  ns: number;
+}
+
+function splitNumberUnit(value: string): { num: string; unit: string } {
+  const m = /^\s*([+-]?(?:\d+[.,]?\d*|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-zµμ]*)\s*$/.exec(value);
+  if (!m) return { num: value.trim(), unit: '' };
+  return { num: m[1].replace(',', '.'), unit: m[2].toLowerCase().replace('μ', 'µ') };
+}
+
+function bad(key: string, value: string, ctx: MetadataContext, what: string): InputError {
+  return new InputError(`metadata '${key}: ${value}' is not ${what}`, {
+    file: ctx.source,
+    line: ctx.lines?.[key],
+  });
+}
+
+function positive(key: string, value: string, num: string, ctx: MetadataContext, what: string): number {
+  const v = Number(num);
+  if (num === '' || !Number.isFinite(v) || v <= 0) throw bad(key, value, ctx, what);
+  return v;
+}
+
+/** Time-valued keys: `<stem>_<unit>` or `<stem>` with the unit in the value. */
+function findTimes(meta: Record<string, string>, stems: string[], ctx: MetadataContext): Found[] {
+  const out: Found[] = [];
+  for (const [key, value] of Object.entries(meta)) {
+    for (const stem of stems) {
+      let unit: string | undefined;
+      let num: string;
+      if (key === stem) {
+        const s = splitNumberUnit(value);
+        num = s.num;
+        unit = s.unit;
+        if (!(unit in TIME_UNITS)) throw bad(key, value, ctx, 'a time with a unit (for example "12.2 ps")');
+      } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in TIME_UNITS) {
+        unit = key.slice(stem.length + 1);
+        num = splitNumberUnit(value).num;
+        if (splitNumberUnit(value).unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
+      } else continue;
+      out.push({ key, ns: positive(key, value, num, ctx, 'a positive time') * NS_PER[TIME_UNITS[unit]] });
+    }
+  }
+  return out;
+}
+
+/** Rate-valued keys: `<stem>_<hz|khz|mhz|ghz>` or `<stem>` with the unit in the value; returned as a period. */
+function findRatesAsPeriods(meta: Record<string, string>, ctx: MetadataContext): Found[] {
+  const out: Found[] = [];
+  for (const [key, value] of Object.entries(meta)) {
+    for (const stem of RATE_STEMS) {
+      let unit: string;
+      let num: string;
+      if (key === stem) {
+        ({ num, unit } = splitNumberUnit(value));
+        if (!(unit in RATE_HZ)) throw bad(key, value, ctx, 'a rate with a unit (for example "80 MHz")');
+      } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in RATE_HZ) {
+        unit = key.slice(stem.length + 1);
+        num = splitNumberUnit(value).num;
+        if (splitNumberUnit(value).unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
+      } else continue;
+      const hz = positive(key, value, num, ctx, 'a positive rate') * RATE_HZ[unit];
+      out.push({ key, ns: 1e9 / hz });
+    }
+  }
+  return out;
+}
+
+function agreed(found: Found[], what: string, meta: Record<string, string>, ctx: MetadataContext): Found | undefined {
+  if (found.length === 0) return undefined;
+  const first = found[0];
+  for (const f of found.slice(1)) {
+    if (Math.abs(f.ns - first.ns) > 1e-3 * first.ns) {
+      throw new InputError(
+        `metadata disagrees on the ${what}: '${first.key}: ${meta[first.key]}' (${first.ns} ns) and '${f.key}: ${meta[f.key]}' (${f.ns} ns); keep one`,
+        { file: ctx.source, line: ctx.lines?.[f.key] },
+      );
+    }
+  }
+  return first;
+}
+
+/**
+ * Channel width in ns from metadata (`bin_width_ns`, `bin_width_ps`, `resolution_ps`,
+ * `channel_width_ns`, `bin_width: 12.2 ps` …), or undefined when none is given. Throws InputError
+ * when a value is not a positive number or two keys disagree by more than 0.1 %.
+ */
+export function metadataBinWidthNs(meta: Record<string, string>, ctx: MetadataContext = {}): number | undefined {
+  return findMetadataBinWidth(meta, ctx)?.ns;
+}
+
+/** As `metadataBinWidthNs`, also naming the key the value came from. */
+export function findMetadataBinWidth(
+  meta: Record<string, string>,
+  ctx: MetadataContext = {},
+): { key: string; ns: number } | undefined {
+  return agreed(findTimes(meta, BIN_WIDTH_STEMS, ctx), 'bin width', meta, ctx);
+}
+
+/**
+ * Excitation period in ns from metadata: a period (`period_ns`, `rep_period_us` …) or a repetition
+ * rate (`rep_rate_mhz`, `repetition_rate_hz`, `rep_rate: 80 MHz` …; period = 1/rate). Undefined when
+ * none is given; InputError when a value is not a positive number or two keys disagree.
+ */
+export function metadataPeriodNs(meta: Record<string, string>, ctx: MetadataContext = {}): number | undefined {
+  const found = [...findTimes(meta, PERIOD_STEMS, ctx), ...findRatesAsPeriods(meta, ctx)];
+  return agreed(found, 'excitation period', meta, ctx)?.ns;
+}
+
+/**
+ * A plain number from metadata (`excitation_nm`, `count_rate_per_s`, `concentration_m` …), or
+ * undefined when the key is absent. Accepts a decimal comma. InputError when it is not a finite number.
+ */
+export function metadataNumber(meta: Record<string, string>, key: string, ctx: MetadataContext = {}): number | undefined {
+  if (!(key in meta)) return undefined;
+  const value = meta[key];
+  const { num, unit } = splitNumberUnit(value);
+  const v = Number(num);
+  if (num === '' || unit !== '' || !Number.isFinite(v)) throw bad(key, value, ctx, 'a plain number');
+  return v;
+}

@@ -1,0 +1,287 @@
+import Papa from 'papaparse';
+import { InputError } from '../errors.js';
+
+/**
+ * The shared first stage of every importer: text → comment metadata + a rectangular table of cell
+ * strings, each row remembering its line in the file. Numbers are not parsed here (papaparse's own
+ * typing turns "1,5" and "0012" into surprises); `parseCellNumber` does that with the detected
+ * decimal mark and names the cell that failed.
+ */
+
+export type Delimiter = 'comma' | 'tab' | 'semicolon' | 'whitespace' | 'single column';
+
+export interface TableRow {
+  /** 1-based line number in the file. */
+  line: number;
+  cells: string[];
+}
+
+export interface TextTable {
+  source: string;
+  delimiter: Delimiter;
+  decimalMark: '.' | ',';
+  /** The header's names, trimmed; null when the first row is numeric. */
+  header: string[] | null;
+  /** Header names, or col1, col2 … without a header. */
+  columns: string[];
+  /** Data rows; every row has `columns.length` cells. */
+  rows: TableRow[];
+  /** `# key: value` metadata, keys normalised (see `normaliseMetadataKey`). */
+  metadata: Record<string, string>;
+  /** The line each metadata key came from, for messages. */
+  metadataLines: Record<string, number>;
+  /** Line of the header, when there is one. */
+  headerLine: number | null;
+  warnings: string[];
+}
+
+/** Lower-case, trimmed, inner spaces and hyphens-between-words kept as written except spaces → `_`. */
+export function normaliseMetadataKey(key: string): string {
+  return key.trim().toLowerCase().replace(/\s+/g, '_');
+}
+
+/** Share of control characters above which a file is called binary rather than text. */
+const BINARY_SHARE = 0.01;
+
+/**
+ * Refuses text that is not a text table: a NUL character, or more than 1 % control characters
+ * (other than tab, CR, LF) or U+FFFD replacement characters (what a decoder makes of bytes that are
+ * not UTF-8). The position is reported as a byte offset into the UTF-8 encoding.
+ */
+export function assertTextual(text: string, source: string): void {
+  let bad = 0;
+  let first = -1;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    const isBad = (c < 32 && c !== 9 && c !== 10 && c !== 13) || c === 0x7f || c === 0xfffd;
+    if (!isBad) continue;
+    if (first < 0) first = i;
+    bad++;
+    if (c === 0) {
+      throw new InputError(`is not a text table (binary data at byte ${byteOffset(text, i)}: a NUL byte)`, {
+        file: source,
+      });
+    }
+  }
+  if (bad > 0 && (bad / Math.max(text.length, 1) > BINARY_SHARE || bad >= 64)) {
+    throw new InputError(
+      `is not a text table (binary data at byte ${byteOffset(text, first)}: ${bad} non-printable characters)`,
+      { file: source },
+    );
+  }
+}
+
+function byteOffset(text: string, index: number): number {
+  return new TextEncoder().encode(text.slice(0, index)).length;
+}
+
+const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+const NUMBER_COMMA = /^[+-]?(?:\d+,?\d*|,\d+)(?:[eE][+-]?\d+)?$/;
+/** A cell that only reads as a number with a decimal comma: digits, one comma, digits. */
+const COMMA_DECIMAL_ONLY = /^[+-]?(?:\d*,\d+|\d+,\d*)(?:[eE][+-]?\d+)?$/;
+
+/** True when the cell reads as a number under the given decimal mark. */
+export function looksNumeric(cell: string, decimalMark: '.' | ','): boolean {
+  return (decimalMark === '.' ? NUMBER : NUMBER_COMMA).test(cell.trim());
+}
+
+/**
+ * Parses one cell as a finite number with the file's decimal mark, or throws an InputError naming
+ * the line, the column and the text.
+ */
+export function parseCellNumber(
+  cell: string,
+  decimalMark: '.' | ',',
+  where: { file: string; line: number; column: number },
+  what = 'a number',
+): number {
+  const t = cell.trim();
+  if (t === '') throw new InputError(`empty cell where ${what} was expected`, where);
+  if (!looksNumeric(t, decimalMark)) {
+    const hint =
+      decimalMark === ',' && NUMBER.test(t) && t.includes('.')
+        ? ' (this file uses decimal commas, but this cell has a decimal point)'
+        : decimalMark === '.' && COMMA_DECIMAL_ONLY.test(t)
+          ? ' (a decimal comma needs a semicolon or tab as the column separator)'
+          : '';
+    throw new InputError(`'${clip(t)}' is not ${what}${hint}`, where);
+  }
+  const v = Number(decimalMark === ',' ? t.replace(',', '.') : t);
+  if (!Number.isFinite(v)) throw new InputError(`'${clip(t)}' is out of the range of finite numbers`, where);
+  return v;
+}
+
+function clip(s: string): string {
+  return s.length > 40 ? `${s.slice(0, 37)}…` : s;
+}
+
+interface ContentLine {
+  line: number;
+  text: string;
+}
+
+/**
+ * Splits text into a table. Accepts a UTF-8 byte-order mark, CRLF/CR/LF line ends, blank lines and
+ * `#` comment lines anywhere; `# key: value` (or `# key = value`) comments become metadata.
+ */
+export function readTextTable(text: string, source: string): TextTable {
+  assertTextual(text, source);
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+  const lines = text.split(/\r\n|\r|\n/);
+  const metadata: Record<string, string> = {};
+  const metadataLines: Record<string, number> = {};
+  const warnings: string[] = [];
+  const content: ContentLine[] = [];
+  for (let i = 0; i < lines.length; i++) {
+    const raw = lines[i];
+    const trimmed = raw.trim();
+    if (trimmed === '') continue;
+    if (trimmed.startsWith('#')) {
+      const m = /^#+\s*([^:=]*?[^\s:=])\s*[:=]\s*(.*)$/.exec(trimmed);
+      if (m) {
+        const key = normaliseMetadataKey(m[1]);
+        const value = m[2].trim();
+        if (key in metadata && metadata[key] !== value) {
+          warnings.push(
+            `metadata '${key}' is given twice (line ${metadataLines[key]}: '${metadata[key]}', line ${i + 1}: '${value}'); the later value is used`,
+          );
+        }
+        metadata[key] = value;
+        metadataLines[key] = i + 1;
+      }
+      continue;
+    }
+    content.push({ line: i + 1, text: raw });
+  }
+  if (content.length === 0) {
+    throw new InputError(
+      lines.some((l) => l.trim() !== '') ? 'holds only comment lines and no data' : 'is empty',
+      { file: source },
+    );
+  }
+
+  const delimiter = detectDelimiter(content[0].text);
+  const split = splitLines(content, delimiter, source);
+  const firstNumeric = split[0].every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
+  const header = firstNumeric ? null : split[0].map((c) => c.trim());
+  const headerLine = header ? content[0].line : null;
+  let dataCells = header ? split.slice(1) : split;
+  let dataLines = header ? content.slice(1) : content;
+  if (dataCells.length === 0) {
+    throw new InputError('has a header line but no data rows', { file: source, line: headerLine ?? undefined });
+  }
+
+  // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
+  // the word before it when that makes the header as wide as the data.
+  let columns = header ?? split[0].map((_, j) => `col${j + 1}`);
+  if (header && delimiter === 'whitespace' && header.length !== dataCells[0].length) {
+    const joined = content[0].text
+      .trim()
+      .replace(/\s+(?=[([/])/g, '')
+      .replace(/\/\s+/g, '/')
+      .split(/\s+/);
+    if (joined.length === dataCells[0].length) columns = joined;
+  }
+  if (header) {
+    const seen = new Map<string, number>();
+    columns.forEach((name, j) => {
+      if (name === '') {
+        throw new InputError(`header column ${j + 1} has no name`, { file: source, line: headerLine!, column: j + 1 });
+      }
+      const key = name.toLowerCase();
+      if (seen.has(key)) {
+        throw new InputError(`header names '${name}' twice (columns ${seen.get(key)! + 1} and ${j + 1})`, {
+          file: source,
+          line: headerLine!,
+          column: j + 1,
+        });
+      }
+      seen.set(key, j);
+    });
+  }
+
+  const width = columns.length;
+  const rows: TableRow[] = [];
+  for (let r = 0; r < dataCells.length; r++) {
+    let cells = dataCells[r];
+    // A trailing separator (common in spreadsheet exports) gives one empty last field: drop it.
+    if (cells.length === width + 1 && cells[width].trim() === '') cells = cells.slice(0, width);
+    if (cells.length !== width) {
+      throw new InputError(
+        `has ${cells.length} ${cells.length === 1 ? 'field' : 'fields'} but the ${header ? 'header' : 'first row'} has ${width}; every row needs the same columns`,
+        { file: source, line: dataLines[r].line, column: Math.min(cells.length, width) + 1 },
+      );
+    }
+    rows.push({ line: dataLines[r].line, cells });
+  }
+  dataCells = [];
+  dataLines = [];
+
+  const decimalMark = detectDecimalMark(rows, delimiter, source);
+  return { source, delimiter, decimalMark, header, columns, rows, metadata, metadataLines, headerLine, warnings };
+}
+
+/** The separator is read off the first content line (the header, or the first data row). */
+function detectDelimiter(first: string): Delimiter {
+  if (first.includes('\t')) return 'tab';
+  if (first.includes(';')) return 'semicolon';
+  if (first.includes(',')) {
+    // "1,5" alone on a line is a single decimal-comma number only in a one-column file, which the
+    // separator rule cannot tell from two columns: a comma always separates.
+    return 'comma';
+  }
+  if (/\S\s+\S/.test(first.trim())) return 'whitespace';
+  return 'single column';
+}
+
+const PAPA_DELIMITER: Record<string, string> = { comma: ',', tab: '\t', semicolon: ';' };
+
+function splitLines(content: ContentLine[], delimiter: Delimiter, source: string): string[][] {
+  if (delimiter === 'single column') return content.map((c) => [c.text.trim()]);
+  if (delimiter === 'whitespace') return content.map((c) => c.text.trim().split(/\s+/));
+  // papaparse splits (quotes, escaped quotes); we keep one row per line so line numbers stay exact.
+  const parsed = Papa.parse<string[]>(content.map((c) => c.text).join('\n'), {
+    delimiter: PAPA_DELIMITER[delimiter],
+    newline: '\n',
+    quoteChar: '"',
+    header: false,
+    dynamicTyping: false,
+    skipEmptyLines: false,
+  });
+  const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
+  if (quoteError || parsed.data.length !== content.length) {
+    const row = quoteError?.row ?? 0;
+    throw new InputError('has an unterminated quoted field; quotes must open and close on the same line', {
+      file: source,
+      line: content[Math.min(row, content.length - 1)].line,
+    });
+  }
+  return parsed.data;
+}
+
+/**
+ * Decimal commas are recognised only where the separator is not a comma. A file that mixes a decimal
+ * comma and a decimal point is refused, naming the first cell of the minority kind.
+ */
+function detectDecimalMark(rows: TableRow[], delimiter: Delimiter, source: string): '.' | ',' {
+  if (delimiter === 'comma') return '.';
+  let comma: { line: number; column: number; text: string } | null = null;
+  let point: { line: number; column: number; text: string } | null = null;
+  for (const row of rows) {
+    for (let j = 0; j < row.cells.length; j++) {
+      const t = row.cells[j].trim();
+      if (!comma && COMMA_DECIMAL_ONLY.test(t)) comma = { line: row.line, column: j + 1, text: t };
+      else if (!point && /^[+-]?(?:\d*\.\d+|\d+\.\d*)(?:[eE][+-]?\d+)?$/.test(t))
+        point = { line: row.line, column: j + 1, text: t };
+    }
+    if (comma && point) break;
+  }
+  if (comma && point) {
+    const later = comma.line > point.line || (comma.line === point.line && comma.column > point.column) ? comma : point;
+    throw new InputError(
+      `'${later.text}' mixes decimal marks: line ${(later === comma ? point : comma).line} uses '${later === comma ? '.' : ','}', this cell '${later === comma ? ',' : '.'}'; use one decimal mark throughout`,
+      { file: source, line: later.line, column: later.column },
+    );
+  }
+  return comma ? ',' : '.';
+}
