@@ -6,18 +6,12 @@ import {
   residualAutocorrelation,
   runsTest,
 } from '../../src/fit/diagnostics.js';
+import { createRng } from '../../src/sim/rng.js';
 
-/** Seeded standard-normal source for the Monte Carlo checks (mulberry32 + Box–Muller). */
+/** Seeded standard-normal source for the Monte Carlo checks. */
 function normalSource(seed: number): () => number {
-  let s = seed >>> 0;
-  const uniform = (): number => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return (((t ^ (t >>> 14)) >>> 0) + 0.5) / 4294967296;
-  };
-  return () => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
+  const rng = createRng(seed);
+  return () => rng.normal();
 }
 
 function whiteNoise(next: () => number, n: number): Float64Array {
