@@ -57,4 +57,20 @@ export interface Spectrum {
   metadata: Record<string, string>;
   source: string;
   warnings: string[];
+  /** How the file was read; absent for spectra made in memory. */
+  report?: SpectrumImportReport;
+}
+
+/** What the importer inferred from a spectrum file. */
+export interface SpectrumImportReport {
+  delimiter: string;
+  decimalMark: '.' | ',';
+  hasHeader: boolean;
+  columns: string[];
+  /** The axis column and how its unit was known. */
+  axisColumn: string;
+  axisSource: string;
+  ordinateColumn: string;
+  /** How the ordinate was read, e.g. 'absorbance → ε with c = 1e-05 M, l = 1 cm'. */
+  ordinate: string;
 }
