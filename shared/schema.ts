@@ -95,6 +95,11 @@ export interface FitResult {
   /** Width (FWHM) of the modelled Gaussian IRF, ns; only when irfMode is 'gaussian'. */
   irfFwhmNs?: number;
   irfFwhmErrNs?: number;
+  /** Centre of the modelled Gaussian IRF on the decay's time axis, ns; only when irfMode is 'gaussian'. */
+  irfCenterNs?: number;
+  irfCenterErrNs?: number;
+  /** Full covariance of the free parameters at the optimum (inverse Fisher information), with their names. */
+  covariance?: { names: string[]; matrix: number[][] };
   /** Pearson χ² divided by degrees of freedom. */
   chi2Reduced: number;
   chi2: number;
