@@ -1,0 +1,180 @@
+import { describe, expect, it } from 'vitest';
+import type { FitResult } from '../../shared/schema.js';
+import { SCHEMA_VERSION } from '../../shared/schema.js';
+import type { Histogram } from '../../src/io/types.js';
+import { degeneracyOf, selectComponents, type FitModelFn } from '../../src/fit/selectComponents.js';
+
+/** A FitResult with just the numbers model selection reads; the rest are inert. */
+function stubFit(
+  taus: number[],
+  deviance: number,
+  opts: { errs?: number[]; fractions?: number[] } = {},
+): FitResult {
+  const n = taus.length;
+  const nPoints = 1000;
+  const k = 2 * n + 2;
+  return {
+    schemaVersion: SCHEMA_VERSION,
+    statistic: 'poisson',
+    nComponents: n,
+    components: taus.map((tauNs, i) => ({
+      tauNs,
+      tauErrNs: opts.errs?.[i] ?? 0.01 * tauNs,
+      amplitude: 100,
+      amplitudeErr: 1,
+      intensityFraction: opts.fractions?.[i] ?? 1 / n,
+      intensityFractionErr: 0.01,
+      amplitudeFraction: opts.fractions?.[i] ?? 1 / n,
+    })),
+    tauAmpAvgNs: 1,
+    tauAmpAvgErrNs: 0,
+    tauIntAvgNs: 1,
+    tauIntAvgErrNs: 0,
+    shiftNs: 0,
+    shiftErrNs: 0,
+    background: 0,
+    backgroundErr: 0,
+    scatter: 0,
+    scatterErr: 0,
+    chi2Reduced: deviance / (nPoints - k),
+    chi2: deviance,
+    deviance,
+    deviancePerDof: deviance / (nPoints - k),
+    dof: nPoints - k,
+    durbinWatson: 2,
+    runsZ: 0,
+    runsPValue: 1,
+    aic: deviance + 2 * k,
+    bic: deviance + k * Math.log(nPoints),
+    converged: true,
+    stop: 'converged',
+    iterations: 10,
+    warnings: [],
+    irfMode: 'measured',
+    rangeNs: [0, 25],
+    periodNs: null,
+    binWidthNs: 0.025,
+    peakCounts: 1e4,
+    totalCounts: 1e6,
+    fixed: {},
+    curves: {
+      timeNs: [],
+      data: [],
+      model: [],
+      irf: [],
+      weightedResiduals: [],
+      autocorrelation: [],
+      fitStartIndex: 0,
+      fitEndIndex: 999,
+    },
+  };
+}
+
+const dummy: Histogram = {
+  timeNs: new Float64Array(8),
+  counts: new Float64Array(8),
+  binWidthNs: 0.025,
+  metadata: {},
+  source: 'stub',
+  warnings: [],
+};
+
+/** A fitter that returns prepared fits by component count and records what it was asked. */
+function scripted(fits: Record<number, FitResult>): { fit: FitModelFn; asked: number[] } {
+  const asked: number[] = [];
+  return {
+    asked,
+    fit: (_d, _i, o) => {
+      asked.push(o.components);
+      const f = fits[o.components];
+      if (!f) throw new Error(`no ${o.components}-component fit`);
+      return f;
+    },
+  };
+}
+
+describe('degeneracyOf', () => {
+  it('accepts well-separated, well-determined components', () => {
+    expect(degeneracyOf(stubFit([0.8, 3.5], 1000), {})).toBeNull();
+  });
+
+  it('flags a lifetime on its bound, merged lifetimes, overlapping errors and a vanishing component', () => {
+    expect(degeneracyOf(stubFit([0.005, 3.5], 1000), {})).toMatch(/τ1 sits at its lower bound 0\.005/);
+    expect(degeneracyOf(stubFit([0.8, 20], 1000), { bounds: { tau2Ns: { max: 20 } } })).toMatch(
+      /upper bound 20/,
+    );
+    expect(degeneracyOf(stubFit([3.4, 3.5], 1000), {})).toMatch(/not resolved/);
+    expect(degeneracyOf(stubFit([2.0, 3.0], 1000, { errs: [0.4, 0.4] }), {})).toMatch(/not resolved/);
+    expect(degeneracyOf(stubFit([0.8, 3.5, 9], 1000, { fractions: [0.5, 0.495, 0.005] }), {})).toMatch(
+      /component 3 carries under 1 %/,
+    );
+  });
+
+  it('ignores a lifetime the user held fixed', () => {
+    expect(degeneracyOf(stubFit([0.005, 3.5], 1000), { fix: { tau1Ns: 0.005 } })).toBeNull();
+  });
+});
+
+describe('selectComponents with a scripted fitter', () => {
+  it('adds a component only while the deviance falls significantly and BIC falls, and says why', () => {
+    // ΔD(1→2) = 900 with 2 more parameters; ΔD(2→3) = 3.1 ⇒ p = e^(−3.1/2) = 0.21 (χ²₂ closed form),
+    // ΔBIC = −3.1 + 2 ln 1000 = +10.7.
+    const s = scripted({
+      1: stubFit([2], 2000),
+      2: stubFit([0.8, 3.5], 1100),
+      3: stubFit([0.5, 1.5, 3.6], 1096.9),
+    });
+    const r = selectComponents(dummy, null, {}, s.fit);
+    expect(r.nComponents).toBe(2);
+    expect(s.asked).toEqual([1, 2, 3]);
+    const sel = r.componentSelection!;
+    expect(sel.chosen).toBe(2);
+    expect(sel.candidates.map((c) => c.nComponents)).toEqual([1, 2, 3]);
+    expect(sel.candidates[0].lrtPValue).toBeUndefined();
+    expect(sel.candidates[2].lrtPValue).toBeCloseTo(Math.exp(-1.55), 12);
+    expect(sel.reason).toMatch(/^2 components: the second lowered the deviance by 900 \(p < 0\.0001\)/);
+    expect(sel.reason).toContain('the third lowered the deviance by 3.1 (p = 0.21) and raised BIC by 11');
+    expect(sel.reason).toMatch(/approximate/);
+  });
+
+  it('stops at a degenerate fit even when it lowers the deviance', () => {
+    const s = scripted({
+      1: stubFit([2], 2000),
+      2: stubFit([1.9, 2.0], 1900),
+      3: stubFit([0.5, 1.5, 3.6], 1000),
+    });
+    const r = selectComponents(dummy, null, {}, s.fit);
+    expect(r.nComponents).toBe(1);
+    expect(s.asked).toEqual([1, 2]);
+    expect(r.componentSelection!.reason).toMatch(
+      /^1 component: a 2-component fit is degenerate \(τ1 = 1\.90 ns and τ2 = 2\.00 ns are not resolved\)/,
+    );
+  });
+
+  it('stops when a larger fit throws, keeping what it had', () => {
+    const s = scripted({ 1: stubFit([2], 2000), 2: stubFit([0.8, 3.5], 1100) });
+    const r = selectComponents(dummy, null, {}, s.fit);
+    expect(r.nComponents).toBe(2);
+    expect(r.componentSelection!.reason).toContain('a 3-component fit failed (no 3-component fit)');
+  });
+
+  it('goes no further than maxComponents', () => {
+    const s = scripted({
+      1: stubFit([2], 2000),
+      2: stubFit([0.8, 3.5], 1100),
+      3: stubFit([0.3, 1, 4], 1000),
+    });
+    const r = selectComponents(dummy, null, {}, s.fit, { maxComponents: 2 });
+    expect(r.nComponents).toBe(2);
+    expect(s.asked).toEqual([1, 2]);
+    expect(r.componentSelection!.reason).toContain('2 is the most tried');
+  });
+
+  it('returns a new object and leaves the candidate fits untouched', () => {
+    const one = stubFit([2], 2000);
+    const s = scripted({ 1: one, 2: stubFit([1.9, 2.0], 1999) });
+    const r = selectComponents(dummy, null, {}, s.fit);
+    expect(r).not.toBe(one);
+    expect(one.componentSelection).toBeUndefined();
+  });
+});
