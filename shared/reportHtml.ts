@@ -1,0 +1,143 @@
+/**
+ * The offline report as one HTML string: page script, styles, uPlot and the data, all inline, so the
+ * file opens from disk with no network. Pure: the caller reads the assets and writes the file.
+ *
+ * Safety: every piece of data goes into `<script type="application/json">` blocks with `<`, U+2028
+ * and U+2029 written as JSON escapes, so no string in the data (a sample named `</script>…`) can end
+ * its block; the page reads the blocks with `JSON.parse(textContent)` and shows names with
+ * `textContent` only. A Content-Security-Policy allows inline code and nothing from the network.
+ *
+ * Size: the summary (everything except the plot curves) is one block parsed at load; each sample's
+ * curves sit in their own block, parsed when the sample is first shown, so a report of hundreds of
+ * samples opens quickly. Curves in the report are a display copy rounded to fixed decimals (counts to
+ * 0.01, residuals to 0.001, time to 1e-5 ns); the batch's results.json keeps full precision.
+ */
+import type { FitCurves, ReportData, SampleResult } from './schema.js';
+
+export interface ReportAssets {
+  /** The page bundle (an IIFE). */
+  appJs: string;
+  appCss: string;
+  /** uPlot's IIFE build, which defines the global `uPlot`. */
+  uplotJs: string;
+  uplotCss: string;
+}
+
+/** Element ids shared by the writer and the page. */
+export const REPORT_DATA_ID = 'lumirate-report-data';
+export const CURVES_ID_PREFIX = 'lumirate-curves-';
+
+export const REPORT_CSP =
+  "default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data: blob:; base-uri 'none'; form-action 'none'";
+
+/** A time axis stored as start and step when it is uniform, else as the full list. */
+export type PackedAxis = { startNs: number; stepNs: number; length: number } | number[];
+
+/** FitCurves as embedded in the report: rounded, with a uniform time axis stored as start + step. */
+export interface PackedCurves extends Omit<FitCurves, 'timeNs'> {
+  timeNs: PackedAxis;
+}
+
+/** Round to a fixed number of decimals, keeping null (a masked channel) and non-finite values as null. */
+function roundTo<T extends number | null>(values: T[], decimals: number): (number | null)[] {
+  const scale = 10 ** decimals;
+  return values.map((v) => (v === null || !Number.isFinite(v) ? null : Math.round(v * scale) / scale));
+}
+
+function packAxis(timeNs: number[]): PackedAxis {
+  const n = timeNs.length;
+  if (n < 2) return timeNs.slice();
+  const step = (timeNs[n - 1] - timeNs[0]) / (n - 1);
+  // Uniform when every channel lies within 1e-6 of a step of the straight line.
+  const tol = Math.abs(step) * 1e-6;
+  for (let i = 0; i < n; i++) if (Math.abs(timeNs[i] - (timeNs[0] + i * step)) > tol) return timeNs.slice();
+  return { startNs: timeNs[0], stepNs: step, length: n };
+}
+
+export function packCurves(c: FitCurves): PackedCurves {
+  return {
+    timeNs: packAxis(c.timeNs),
+    data: roundTo(c.data, 2) as number[],
+    model: roundTo(c.model, 2),
+    irf: roundTo(c.irf, 2) as number[],
+    weightedResiduals: roundTo(c.weightedResiduals, 3),
+    autocorrelation: roundTo(c.autocorrelation, 4) as number[],
+    fitStartIndex: c.fitStartIndex,
+    fitEndIndex: c.fitEndIndex,
+  };
+}
+
+export function unpackCurves(p: PackedCurves): FitCurves {
+  const t = p.timeNs;
+  const timeNs = Array.isArray(t) ? t : Array.from({ length: t.length }, (_, i) => t.startNs + i * t.stepNs);
+  return { ...p, timeNs };
+}
+
+/** JSON that is safe inside a `<script>` element: no `<` at all, and no raw line or paragraph separator. */
+export function jsonForScript(value: unknown): string {
+  return JSON.stringify(value)
+    .replace(/</g, '\\u003c')
+    .replace(/\u2028/g, '\\u2028')
+    .replace(/\u2029/g, '\\u2029');
+}
+
+/** Text safe in HTML content and attribute values. */
+export function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (ch) => `&#${ch.charCodeAt(0)};`);
+}
+
+/**
+ * Code safe inside a `<script>` element. `</script` can only occur inside a string, template, regex or
+ * comment, where `<\/script` means the same; `<!--` becomes `<\x21--` (the same text in a string or
+ * regex) so the parser never enters its escaped-script state.
+ */
+function inlineScript(js: string): string {
+  return js.replace(/<\/(script)/gi, '<\\/$1').replace(/<!--/g, '<\\x21--');
+}
+
+function inlineStyle(css: string, what: string): string {
+  if (/<\/style/i.test(css)) throw new Error(`${what} contains "</style" and cannot be inlined`);
+  return css;
+}
+
+/** The summary the page parses at load: every sample without its curves. */
+function summaryOf(data: ReportData): ReportData {
+  const samples = data.samples.map((s): SampleResult => {
+    if (!s.fit) return s;
+    // The curves travel in their own block; the page puts them back when it shows the sample.
+    const { curves: _curves, ...fit } = s.fit;
+    return { ...s, fit: fit as SampleResult['fit'] };
+  });
+  return { ...data, samples };
+}
+
+/** The whole report page. */
+export function assembleReportHtml(assets: ReportAssets, data: ReportData): string {
+  const parts: string[] = [];
+  parts.push(
+    '<!doctype html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n',
+    `<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">\n`,
+    '<meta name="viewport" content="width=device-width, initial-scale=1">\n',
+    `<meta name="generator" content="lumirate ${escapeHtml(data.lumirateVersion)}">\n`,
+    `<title>${escapeHtml(data.title)}</title>\n`,
+    `<style>${inlineStyle(assets.uplotCss, 'the uPlot stylesheet')}</style>\n`,
+    `<style>${inlineStyle(assets.appCss, 'the page stylesheet')}</style>\n`,
+    '</head>\n<body>\n',
+    '<noscript><p>This report draws its tables and plots with JavaScript; please allow scripts for this local file.</p></noscript>\n',
+    '<div id="lumirate-app"></div>\n',
+    `<script type="application/json" id="${REPORT_DATA_ID}">${jsonForScript(summaryOf(data))}</script>\n`,
+  );
+  data.samples.forEach((s, i) => {
+    if (s.fit?.curves) {
+      parts.push(
+        `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">${jsonForScript(packCurves(s.fit.curves))}</script>\n`,
+      );
+    }
+  });
+  parts.push(
+    `<script>${inlineScript(assets.uplotJs)}</script>\n`,
+    `<script>${inlineScript(assets.appJs)}</script>\n`,
+  );
+  parts.push('</body>\n</html>\n');
+  return parts.join('');
+}

@@ -1,0 +1,349 @@
+/**
+ * The plots, drawn with uPlot from precomputed columns: the decay on a logarithmic count axis with the
+ * IRF and the model, the weighted residuals on the same (zoom-linked) time axis, the residual
+ * autocorrelation, and the series views. Each plot can be saved as a PNG.
+ */
+import type uPlotType from 'uplot';
+import type { FitCurves, SeriesResult } from '../shared/schema.js';
+import { decimationIndices, pick } from './decimate.js';
+import { STYLE } from './palette.js';
+import { el, download, safeFileName } from './dom.js';
+
+/** uPlot arrives as a global from its own inline script. */
+function uPlotCtor(): typeof uPlotType {
+  const ctor = (globalThis as unknown as { uPlot?: typeof uPlotType }).uPlot;
+  if (!ctor) throw new Error('the plotting library did not load');
+  return ctor;
+}
+
+/** A plot in the page: its uPlot instance, its frame (title, buttons) and a name for exported files. */
+export interface PlotHandle {
+  frame: HTMLElement;
+  plot: uPlotType;
+  destroy(): void;
+}
+
+/** On a log axis a count ≤ 0 has no place: null leaves a gap instead of a clamped spike. */
+function positiveOrNull(values: (number | null)[]): (number | null)[] {
+  return values.map((v) => (v !== null && v > 0 ? v : null));
+}
+
+function widthOf(container: HTMLElement): number {
+  return Math.max(320, Math.floor(container.clientWidth || 640) - 4);
+}
+
+/** Saves the plot's canvas with its title and a colour key, on white, as a PNG. */
+function savePng(u: uPlotType, title: string, fileName: string): void {
+  const src = u.ctx.canvas;
+  const ratio = src.width / Math.max(1, u.width);
+  const keyHeight = Math.round(22 * ratio);
+  const titleHeight = Math.round(26 * ratio);
+  const out = document.createElement('canvas');
+  out.width = src.width;
+  out.height = src.height + titleHeight + keyHeight;
+  const ctx = out.getContext('2d');
+  if (!ctx) return;
+  ctx.fillStyle = '#ffffff';
+  ctx.fillRect(0, 0, out.width, out.height);
+  ctx.fillStyle = '#000000';
+  ctx.font = `${Math.round(14 * ratio)}px sans-serif`;
+  ctx.textBaseline = 'middle';
+  ctx.fillText(title, 8 * ratio, titleHeight / 2);
+  ctx.drawImage(src, 0, titleHeight);
+  let x = 8 * ratio;
+  const y = titleHeight + src.height + keyHeight / 2;
+  ctx.font = `${Math.round(12 * ratio)}px sans-serif`;
+  u.series.forEach((s, i) => {
+    if (i === 0 || !s.show || !s.label) return;
+    const stroke = typeof s.stroke === 'function' ? s.stroke(u, i) : s.stroke;
+    ctx.strokeStyle = typeof stroke === 'string' ? stroke : '#000000';
+    ctx.lineWidth = 2 * ratio;
+    ctx.setLineDash(((s as { dash?: number[] }).dash ?? []).map((d) => d * ratio));
+    ctx.beginPath();
+    ctx.moveTo(x, y);
+    ctx.lineTo(x + 24 * ratio, y);
+    ctx.stroke();
+    ctx.setLineDash([]);
+    ctx.fillStyle = '#000000';
+    const label = String(s.label);
+    ctx.fillText(label, x + 30 * ratio, y);
+    x += 30 * ratio + ctx.measureText(label).width + 18 * ratio;
+  });
+  out.toBlob((blob) => {
+    if (blob) download(blob, `${fileName}.png`);
+  }, 'image/png');
+}
+
+function frame(
+  title: string,
+  fileName: string,
+  body: HTMLElement,
+  plotRef: () => uPlotType | null,
+): HTMLElement {
+  const button = el(
+    'button',
+    { className: 'lr-png', attrs: { type: 'button', title: 'Save this plot as a PNG image' } },
+    'PNG',
+  );
+  button.addEventListener('click', () => {
+    const u = plotRef();
+    if (u) savePng(u, title, fileName);
+  });
+  return el(
+    'figure',
+    { className: 'lr-plot' },
+    el('figcaption', null, el('span', null, title), button),
+    body,
+  );
+}
+
+function basePlot(
+  title: string,
+  fileName: string,
+  container: HTMLElement,
+  height: number,
+  opts: Omit<uPlotType.Options, 'width' | 'height' | 'title'>,
+  data: uPlotType.AlignedData,
+): PlotHandle {
+  const UPlot = uPlotCtor();
+  const body = el('div', { className: 'lr-plot-body' });
+  let plot: uPlotType | null = null;
+  const figure = frame(title, fileName, body, () => plot);
+  container.appendChild(figure);
+  plot = new UPlot({ ...opts, width: widthOf(body), height } as uPlotType.Options, data, body);
+  const u = plot;
+  const ro = new ResizeObserver(() => {
+    const w = widthOf(body);
+    if (Math.abs(w - u.width) > 2) u.setSize({ width: w, height });
+  });
+  ro.observe(body);
+  return {
+    frame: figure,
+    plot: u,
+    destroy() {
+      ro.disconnect();
+      u.destroy();
+      figure.remove();
+    },
+  };
+}
+
+/** A dashed line at y = 0, drawn under the curves' key rather than listed in it. */
+function zeroLine(u: uPlotType): void {
+  const y = u.valToPos(0, 'y', true);
+  if (!Number.isFinite(y) || y < u.bbox.top || y > u.bbox.top + u.bbox.height) return;
+  const ctx = u.ctx;
+  ctx.save();
+  ctx.strokeStyle = STYLE.zero.stroke;
+  ctx.lineWidth = STYLE.zero.width * devicePixelRatio;
+  ctx.setLineDash(STYLE.zero.dash.map((d) => d * devicePixelRatio));
+  ctx.beginPath();
+  ctx.moveTo(u.bbox.left, y);
+  ctx.lineTo(u.bbox.left + u.bbox.width, y);
+  ctx.stroke();
+  ctx.restore();
+}
+
+/** Decimals needed to write a tick step exactly: 0.25 → 2, 5e-5 → 5, 20 → 0. */
+function decimalsOf(step: number): number {
+  const [mantissa, exp] = Number(step.toPrecision(6)).toExponential().split('e');
+  const mantissaDecimals = (mantissa.split('.')[1] ?? '').length;
+  return Math.max(0, Math.min(12, mantissaDecimals - Number(exp)));
+}
+
+/** Tick labels with as many decimals as the tick spacing needs (0.00310, 0.00320 … not 0.003, 0.003). */
+function tickLabels(_u: uPlotType, splits: number[], _axis: number, _space: number, incr: number): string[] {
+  const big = Math.max(...splits.map((v) => Math.abs(v)));
+  if (big >= 1e5 || (big > 0 && big < 1e-4)) {
+    const digits = Math.max(0, Math.floor(Math.log10(big)) - Math.floor(Math.log10(incr)));
+    return splits.map((v) => (v === 0 ? '0' : v.toExponential(digits)));
+  }
+  const decimals = decimalsOf(incr);
+  return splits.map((v) => v.toFixed(decimals));
+}
+
+const timeAxis = (label: string): uPlotType.Axis => ({ label, labelSize: 20, size: 40 });
+const valueAxis = (label: string, size = 70): uPlotType.Axis => ({ label, labelSize: 20, size });
+
+/**
+ * Decay, residuals and autocorrelation for one sample. Dragging across the decay or the residuals zooms
+ * both time axes together; a double click restores the full range.
+ */
+export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampleName: string): PlotHandle[] {
+  const keep = decimationIndices(curves.data);
+  const t = pick(curves.timeNs, keep);
+  const base = safeFileName(sampleName);
+  const syncKey = `lumirate-time-${Math.random().toString(36).slice(2)}`;
+  const cursor: uPlotType.Cursor = { sync: { key: syncKey }, drag: { x: true, y: false } };
+
+  const decaySeries: uPlotType.Series[] = [
+    { label: 'Time (ns)' },
+    { label: 'Data', ...STYLE.data, points: { show: false } },
+  ];
+  const decayData: (number | null)[][] = [t, positiveOrNull(pick(curves.data, keep))];
+  if (curves.irf.length === curves.data.length) {
+    decaySeries.push({ label: 'IRF', ...STYLE.irf, points: { show: false } });
+    decayData.push(positiveOrNull(pick(curves.irf, keep)));
+  }
+  decaySeries.push({ label: 'Model', ...STYLE.model, points: { show: false } });
+  decayData.push(positiveOrNull(pick(curves.model, keep)));
+
+  const handles: PlotHandle[] = [];
+  const decay = basePlot(
+    'Decay, IRF and model',
+    `${base}-decay`,
+    container,
+    300,
+    {
+      scales: { x: { time: false }, y: { distr: 3, log: 10 } },
+      axes: [timeAxis('Time (ns)'), valueAxis('Counts per channel')],
+      series: decaySeries,
+      cursor,
+    },
+    decayData as uPlotType.AlignedData,
+  );
+  handles.push(decay);
+
+  const residuals = basePlot(
+    'Weighted residuals',
+    `${base}-residuals`,
+    container,
+    150,
+    {
+      scales: {
+        x: { time: false },
+        // Symmetric about zero, so that a lean to one side shows at a glance.
+        y: {
+          range: (_u, min, max) => {
+            const m = Math.max(Math.abs(min), Math.abs(max), 1) * 1.1;
+            return [-m, m];
+          },
+        },
+      },
+      axes: [timeAxis('Time (ns)'), valueAxis('Residual / σ')],
+      series: [{ label: 'Time (ns)' }, { label: 'Residual', ...STYLE.residual, points: { show: false } }],
+      cursor,
+      hooks: { draw: [zeroLine] },
+    },
+    [t, pick(curves.weightedResiduals, keep)] as uPlotType.AlignedData,
+  );
+  handles.push(residuals);
+
+  // Zoom one time axis, zoom the other: both show the same channels.
+  let syncing = false;
+  const link = (from: uPlotType, to: uPlotType) => {
+    from.hooks.setScale = [
+      ...(from.hooks.setScale ?? []),
+      (u: uPlotType, key: string) => {
+        if (key !== 'x' || syncing) return;
+        syncing = true;
+        const { min, max } = u.scales.x;
+        if (min !== undefined && max !== undefined) to.setScale('x', { min, max });
+        syncing = false;
+      },
+    ];
+  };
+  link(decay.plot, residuals.plot);
+  link(residuals.plot, decay.plot);
+
+  // The autocorrelation is shown to half the fit range, beyond which few pairs enter each lag.
+  const dt = curves.timeNs.length > 1 ? curves.timeNs[1] - curves.timeNs[0] : 1;
+  const ac = curves.autocorrelation.slice(0, Math.max(2, Math.ceil(curves.autocorrelation.length / 2)));
+  const lag = ac.map((_, j) => j * dt);
+  handles.push(
+    basePlot(
+      'Residual autocorrelation',
+      `${base}-autocorrelation`,
+      container,
+      150,
+      {
+        scales: { x: { time: false } },
+        axes: [timeAxis('Lag (ns)'), valueAxis('C(lag)')],
+        series: [
+          { label: 'Lag (ns)' },
+          { label: 'Autocorrelation', ...STYLE.autocorrelation, points: { show: false } },
+        ],
+        hooks: { draw: [zeroLine] },
+      },
+      [lag, ac] as uPlotType.AlignedData,
+    ),
+  );
+  return handles;
+}
+
+/** Points with error bars and the fitted law; clicking a point reports its sample. */
+export function drawSeriesPlot(
+  container: HTMLElement,
+  series: SeriesResult,
+  title: string,
+  onPick: (sample: string) => void,
+): PlotHandle {
+  const pts = series.points.slice().sort((a, b) => a.x - b.x);
+  const x = pts.map((p) => p.x);
+  const y = pts.map((p) => p.y);
+  const fit = pts.map((p) => p.fit);
+  const whiskers = (u: uPlotType) => {
+    const ctx = u.ctx;
+    ctx.save();
+    ctx.strokeStyle = STYLE.seriesPoints.stroke;
+    ctx.lineWidth = Math.max(1, devicePixelRatio);
+    for (const p of pts) {
+      if (!(p.yErr > 0)) continue;
+      const cx = u.valToPos(p.x, 'x', true);
+      const y0 = u.valToPos(p.y - p.yErr, 'y', true);
+      const y1 = u.valToPos(p.y + p.yErr, 'y', true);
+      const cap = 4 * devicePixelRatio;
+      ctx.beginPath();
+      ctx.moveTo(cx, y0);
+      ctx.lineTo(cx, y1);
+      ctx.moveTo(cx - cap, y0);
+      ctx.lineTo(cx + cap, y0);
+      ctx.moveTo(cx - cap, y1);
+      ctx.lineTo(cx + cap, y1);
+      ctx.stroke();
+    }
+    ctx.restore();
+  };
+  const handle = basePlot(
+    title,
+    `series-${series.model}`,
+    container,
+    260,
+    {
+      scales: {
+        x: { time: false },
+        y: {
+          // Leave room for the error bars.
+          range: (_u, min, max) => {
+            const lo = Math.min(min, ...pts.map((p) => p.y - (p.yErr || 0)));
+            const hi = Math.max(max, ...pts.map((p) => p.y + (p.yErr || 0)));
+            const pad = (hi - lo) * 0.08 || Math.abs(hi) * 0.1 || 1;
+            return [lo - pad, hi + pad];
+          },
+        },
+      },
+      axes: [
+        { ...valueAxis(series.xName, 40), values: tickLabels },
+        { ...valueAxis(series.yName, 80), values: tickLabels },
+      ],
+      series: [
+        { label: series.xName },
+        {
+          label: 'Measured',
+          stroke: STYLE.seriesPoints.stroke,
+          width: 0,
+          paths: () => null,
+          points: { show: true, size: 8, stroke: STYLE.seriesPoints.stroke, fill: STYLE.seriesPoints.fill },
+        },
+        { label: 'Fit', ...STYLE.seriesFit, points: { show: false } },
+      ],
+      hooks: { draw: [whiskers] },
+    },
+    [x, y, fit] as uPlotType.AlignedData,
+  );
+  handle.plot.over.addEventListener('click', () => {
+    const idx = handle.plot.cursor.idx;
+    if (idx !== null && idx !== undefined && pts[idx]) onPick(pts[idx].sample);
+  });
+  return handle;
+}
