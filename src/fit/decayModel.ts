@@ -1,0 +1,302 @@
+import type { IrfMode } from '../../shared/schema.js';
+import { exponentialBasis, shiftIrf, tailBasis } from '../model/reconvolve.js';
+import { emgBasis, gaussianIrfFractions } from '../model/gaussianIrf.js';
+
+/**
+ * The parametric decay model the fitter varies: Σ aⱼ·basis(τⱼ) + background + scatter·IRF, with the
+ * IRF measured (shifted by a sub-channel amount), Gaussian (fitted centre and width) or absent (tail
+ * fit). It owns its work arrays, so evaluating it allocates nothing.
+ *
+ * Parameter vector (all parameters, free or fixed), in this order:
+ *   a₁ … aₙ (amplitudes, counts per channel), ln τ₁ … ln τₙ (τ in ns), background (counts per channel),
+ *   [scatter (fraction of the counts in the fit range)], then
+ *   measured IRF: shiftNs;  Gaussian IRF: irfCenterNs, irfSigmaNs;  tail fit: nothing.
+ */
+
+export interface DecayModelSetup {
+  mode: IrfMode;
+  nComponents: number;
+  /** Channels on the full axis (the model is computed from channel 0, since the convolution needs them). */
+  channels: number;
+  binWidthNs: number;
+  /** Left edge of channel 0, ns. */
+  firstEdgeNs: number;
+  periodNs: number | null;
+  /** IRF fractions on the decay's channel grid (measured mode). */
+  irf: Float64Array | null;
+  scatter: boolean;
+  /** Counts that one unit of the scatter parameter stands for (the data total in the fit range). */
+  scatterScale: number;
+  /** Fit range [fitStart, fitEnd) in channels. */
+  fitStart: number;
+  fitEnd: number;
+  /** Tail fit: first channel of the tail (t₀ of the exponentials). */
+  tailStart: number;
+}
+
+export interface ParamLayout {
+  amplitude: number[];
+  lnTau: number[];
+  background: number;
+  scatter: number;
+  shift: number;
+  irfCenter: number;
+  irfSigma: number;
+  count: number;
+  names: string[];
+}
+
+export function paramLayout(mode: IrfMode, nComponents: number, scatter: boolean): ParamLayout {
+  const amplitude: number[] = [];
+  const lnTau: number[] = [];
+  const names: string[] = [];
+  for (let j = 0; j < nComponents; j++) {
+    amplitude.push(j);
+    names.push(`amplitude${j + 1}`);
+  }
+  for (let j = 0; j < nComponents; j++) {
+    lnTau.push(nComponents + j);
+    names.push(`tau${j + 1}Ns`);
+  }
+  let k = 2 * nComponents;
+  const background = k++;
+  names.push('background');
+  let sc = -1;
+  if (scatter && mode !== 'none') {
+    sc = k++;
+    names.push('scatter');
+  }
+  let shift = -1;
+  let irfCenter = -1;
+  let irfSigma = -1;
+  if (mode === 'measured') {
+    shift = k++;
+    names.push('shiftNs');
+  } else if (mode === 'gaussian') {
+    irfCenter = k++;
+    irfSigma = k++;
+    names.push('irfCenterNs', 'irfFwhmNs');
+  }
+  return { amplitude, lnTau, background, scatter: sc, shift, irfCenter, irfSigma, count: k, names };
+}
+
+/** Relative and absolute finite-difference steps for the Gaussian-IRF model's nonlinear parameters. */
+const FD_LN_TAU = 1e-5;
+const FD_REL = 1e-5;
+
+export class DecayModel {
+  readonly layout: ParamLayout;
+  private readonly n: number;
+  private readonly basis: Float64Array;
+  private readonly dBasis: Float64Array;
+  private readonly dShiftBasis: Float64Array;
+  private readonly irfShifted: Float64Array;
+  private readonly dIrf: Float64Array;
+  private readonly full: Float64Array;
+  private readonly shiftAcc: Float64Array;
+  private readonly work: Float64Array;
+
+  constructor(readonly setup: DecayModelSetup) {
+    this.layout = paramLayout(setup.mode, setup.nComponents, setup.scatter);
+    const n = setup.channels;
+    this.n = n;
+    this.basis = new Float64Array(n);
+    this.dBasis = new Float64Array(n);
+    this.dShiftBasis = new Float64Array(n);
+    this.irfShifted = new Float64Array(n);
+    this.dIrf = new Float64Array(n);
+    this.full = new Float64Array(n);
+    this.shiftAcc = new Float64Array(n);
+    this.work = new Float64Array(n);
+  }
+
+  /** IRF shape as used by the model at these parameters (fractions per channel), for display. */
+  irfCurve(all: Float64Array): Float64Array {
+    const s = this.setup;
+    const out = new Float64Array(this.n);
+    if (s.mode === 'measured' && s.irf) shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, out, null);
+    else if (s.mode === 'gaussian')
+      gaussianIrfFractions(
+        this.n,
+        s.firstEdgeNs,
+        s.binWidthNs,
+        all[this.layout.irfCenter],
+        all[this.layout.irfSigma],
+        out,
+      );
+    return out;
+  }
+
+  /** Basis curve of one lifetime at the IRF settings in `all` (full axis), into `out`. */
+  basisCurve(all: Float64Array, tauNs: number, out: Float64Array): void {
+    const s = this.setup;
+    if (s.mode === 'measured' && s.irf) {
+      shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null);
+      exponentialBasis(this.irfShifted, s.binWidthNs, tauNs, s.periodNs, out, null, null, null);
+    } else if (s.mode === 'gaussian') {
+      emgBasis(
+        this.n,
+        s.firstEdgeNs,
+        s.binWidthNs,
+        all[this.layout.irfCenter],
+        all[this.layout.irfSigma],
+        tauNs,
+        s.periodNs,
+        out,
+      );
+    } else tailBasis(this.n, s.tailStart, s.binWidthNs, tauNs, s.periodNs, out, null);
+  }
+
+  /**
+   * Model over the full axis into `full` (length channels) and, when `jac` is given, the Jacobian rows
+   * of the free parameters over the fit range: jac[row·nFit + (i − fitStart)], row = freeRow[param]
+   * (−1 for a fixed parameter). Returns false when a value is not finite.
+   */
+  evaluate(all: Float64Array, full: Float64Array, jac: Float64Array | null, freeRow: Int32Array): boolean {
+    const s = this.setup;
+    const L = this.layout;
+    const n = this.n;
+    const i0 = s.fitStart;
+    const i1 = s.fitEnd;
+    const nFit = i1 - i0;
+    const dt = s.binWidthNs;
+    const bg = all[L.background];
+    full.fill(bg);
+    if (jac && freeRow[L.background] >= 0)
+      jac.fill(1, freeRow[L.background] * nFit, (freeRow[L.background] + 1) * nFit);
+
+    if (s.mode === 'measured') {
+      const irf = s.irf as Float64Array;
+      const wantShift = jac !== null && freeRow[L.shift] >= 0;
+      shiftIrf(irf, all[L.shift] / dt, this.irfShifted, wantShift ? this.dIrf : null);
+      if (wantShift) this.shiftAcc.fill(0);
+      if (L.scatter >= 0) {
+        const c = all[L.scatter] * s.scatterScale;
+        for (let i = 0; i < n; i++) full[i] += c * this.irfShifted[i];
+        if (jac && freeRow[L.scatter] >= 0) {
+          const o = freeRow[L.scatter] * nFit - i0;
+          for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * this.irfShifted[i];
+        }
+        if (wantShift) for (let i = 0; i < n; i++) this.shiftAcc[i] += c * this.dIrf[i];
+      }
+      for (let j = 0; j < s.nComponents; j++) {
+        const a = all[L.amplitude[j]];
+        const tau = Math.exp(all[L.lnTau[j]]);
+        const wantTau = jac !== null && freeRow[L.lnTau[j]] >= 0;
+        exponentialBasis(
+          this.irfShifted,
+          dt,
+          tau,
+          s.periodNs,
+          this.basis,
+          wantTau ? this.dBasis : null,
+          wantShift ? this.dIrf : null,
+          wantShift ? this.dShiftBasis : null,
+        );
+        for (let i = 0; i < n; i++) full[i] += a * this.basis[i];
+        if (jac) {
+          const ra = freeRow[L.amplitude[j]];
+          if (ra >= 0) jac.set(this.basis.subarray(i0, i1), ra * nFit);
+          if (wantTau) {
+            const o = freeRow[L.lnTau[j]] * nFit - i0;
+            for (let i = i0; i < i1; i++) jac[o + i] = a * this.dBasis[i];
+          }
+          if (wantShift) for (let i = i0; i < i1; i++) this.shiftAcc[i] += a * this.dShiftBasis[i];
+        }
+      }
+      if (wantShift) {
+        // ∂/∂shift per channel → per ns.
+        const o = freeRow[L.shift] * nFit - i0;
+        for (let i = i0; i < i1; i++) jac![o + i] = this.shiftAcc[i] / dt;
+      }
+    } else if (s.mode === 'none') {
+      for (let j = 0; j < s.nComponents; j++) {
+        const a = all[L.amplitude[j]];
+        const tau = Math.exp(all[L.lnTau[j]]);
+        const wantTau = jac !== null && freeRow[L.lnTau[j]] >= 0;
+        tailBasis(n, s.tailStart, dt, tau, s.periodNs, this.basis, wantTau ? this.dBasis : null);
+        for (let i = 0; i < n; i++) full[i] += a * this.basis[i];
+        if (jac) {
+          const ra = freeRow[L.amplitude[j]];
+          if (ra >= 0) jac.set(this.basis.subarray(i0, i1), ra * nFit);
+          if (wantTau) {
+            const o = freeRow[L.lnTau[j]] * nFit - i0;
+            for (let i = i0; i < i1; i++) jac[o + i] = a * this.dBasis[i];
+          }
+        }
+      }
+    } else {
+      this.evaluateGaussian(all, full, jac, freeRow);
+    }
+    for (let i = i0; i < i1; i++) if (!Number.isFinite(full[i])) return false;
+    return true;
+  }
+
+  /** Gaussian IRF: amplitudes and background analytic, lifetimes, centre and width by central differences. */
+  private evaluateGaussian(
+    all: Float64Array,
+    full: Float64Array,
+    jac: Float64Array | null,
+    freeRow: Int32Array,
+  ) {
+    const s = this.setup;
+    const L = this.layout;
+    const n = this.n;
+    const i0 = s.fitStart;
+    const i1 = s.fitEnd;
+    const nFit = i1 - i0;
+    const dt = s.binWidthNs;
+    const x0 = s.firstEdgeNs;
+    const T = s.periodNs;
+    const center = all[L.irfCenter];
+    const sigma = all[L.irfSigma];
+    const hc = FD_REL * Math.max(sigma, dt);
+    const hs = FD_REL * sigma;
+    const wantC = jac !== null && freeRow[L.irfCenter] >= 0;
+    const wantS = jac !== null && freeRow[L.irfSigma] >= 0;
+    const oc = wantC ? freeRow[L.irfCenter] * nFit - i0 : 0;
+    const os = wantS ? freeRow[L.irfSigma] * nFit - i0 : 0;
+    if (wantC) jac!.fill(0, oc + i0, oc + i1);
+    if (wantS) jac!.fill(0, os + i0, os + i1);
+    const g = this.basis;
+    const w = this.work;
+    // Adds c·(f(+h) − f(−h))/(2h) of a curve family into a Jacobian row.
+    const central = (o: number, c: number, h: number, eval2: (sign: number, out: Float64Array) => void) => {
+      eval2(1, g);
+      eval2(-1, w);
+      const k = c / (2 * h);
+      for (let i = i0; i < i1; i++) jac![o + i] += k * (g[i] - w[i]);
+    };
+    if (L.scatter >= 0) {
+      const c = all[L.scatter] * s.scatterScale;
+      gaussianIrfFractions(n, x0, dt, center, sigma, g);
+      for (let i = 0; i < n; i++) full[i] += c * g[i];
+      if (jac && freeRow[L.scatter] >= 0) {
+        const o = freeRow[L.scatter] * nFit - i0;
+        for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * g[i];
+      }
+      if (wantC)
+        central(oc, c, hc, (sg, out) => gaussianIrfFractions(n, x0, dt, center + sg * hc, sigma, out));
+      if (wantS)
+        central(os, c, hs, (sg, out) => gaussianIrfFractions(n, x0, dt, center, sigma + sg * hs, out));
+    }
+    for (let j = 0; j < s.nComponents; j++) {
+      const a = all[L.amplitude[j]];
+      const lt = all[L.lnTau[j]];
+      const tau = Math.exp(lt);
+      if (wantC) central(oc, a, hc, (sg, out) => emgBasis(n, x0, dt, center + sg * hc, sigma, tau, T, out));
+      if (wantS) central(os, a, hs, (sg, out) => emgBasis(n, x0, dt, center, sigma + sg * hs, tau, T, out));
+      if (jac && freeRow[L.lnTau[j]] >= 0) {
+        const o = freeRow[L.lnTau[j]] * nFit - i0;
+        jac.fill(0, o + i0, o + i1);
+        central(o, a, FD_LN_TAU, (sg, out) =>
+          emgBasis(n, x0, dt, center, sigma, Math.exp(lt + sg * FD_LN_TAU), T, out),
+        );
+      }
+      emgBasis(n, x0, dt, center, sigma, tau, T, g);
+      for (let i = 0; i < n; i++) full[i] += a * g[i];
+      const ra = jac ? freeRow[L.amplitude[j]] : -1;
+      if (ra >= 0) jac!.set(g.subarray(i0, i1), ra * nFit);
+    }
+  }
+}

@@ -1,0 +1,496 @@
+import { SCHEMA_VERSION, type ComponentResult, type FitResult } from '../../shared/schema.js';
+import { ComputationError } from '../errors.js';
+import type { Histogram } from '../io/types.js';
+import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
+import { DecayModel } from './decayModel.js';
+import { durbinWatson, informationCriteria, residualAutocorrelation, runsTest } from './diagnostics.js';
+import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
+import { invertSymmetric, levenbergMarquardt, lossValue, type LmProblem, type LmResult } from './lm.js';
+import type { FitOptions } from './options.js';
+import { gridStarts, tailLifetimeEstimate } from './startValues.js';
+
+/**
+ * Fits one model with a fixed number of exponential components to a decay: the engine under
+ * `fitDecay`, component selection, profile likelihood, bootstrap and global fits.
+ *
+ * Statistics. 'poisson' minimises the Poisson deviance D = 2Σ[m − n + n ln(n/m)] (2m where n = 0),
+ * i.e. maximum likelihood; 'neyman' minimises Σ(n − m)²/max(n, 1); 'pearson' minimises Σ(n − m)²/m
+ * with the model in the weights (its exact minimum, not iterated reweighting). Channels with n = 0
+ * need no special case under any of them; a model of 0 under a count is impossible and rejected.
+ *
+ * Amplitudes, background and scatter are fitted jointly with the lifetimes and the shift: under the
+ * Poisson likelihood they are not a linear least-squares solution, and with the analytic Jacobian
+ * they cost one extra row each. Variable projection is used where it is exact, in the start-value
+ * search (weighted linear least squares on a grid of lifetimes). Lifetimes are varied as ln τ
+ * (always positive, better scaled); bounds apply to τ.
+ *
+ * Uncertainties: covariance = inverse Fisher information at the optimum, Σᵢ ∇mᵢ∇mᵢᵀ·wᵢ with
+ * wᵢ = 1/mᵢ (Poisson and Pearson) or 1/max(nᵢ, 1) (Neyman). It is not scaled by χ²_red: the
+ * counting statistics fix σ, and a χ²_red far above 1 is reported as a warning about the model
+ * instead of being absorbed into wider error bars. Errors of the average lifetimes and intensity
+ * fractions follow by the delta method with the full covariance.
+ *
+ * Components are reported in ascending order of τ unless a lifetime was fixed or bounded by name (then
+ * in the order of those names).
+ */
+export function fitModel(
+  decay: Histogram,
+  irf: Histogram | null,
+  options: FitOptions & { components: number },
+): FitResult {
+  const setup = resolveFitSetup(decay, irf, options);
+  const fit = runFit(setup);
+  return buildResult(setup, fit, decay);
+}
+
+interface FitRun {
+  model: DecayModel;
+  all: Float64Array;
+  free: number[];
+  lm: LmResult;
+  modelFull: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
+}
+
+function runFit(setup: FitSetup): FitRun {
+  const counts = setup.counts;
+  const i0 = setup.fitStart;
+  const i1 = setup.fitEnd;
+  const nFit = i1 - i0;
+  const dt = setup.binWidthNs;
+  let totalInRange = 0;
+  for (let i = i0; i < i1; i++) totalInRange += counts[i];
+  const model = new DecayModel({
+    mode: setup.mode,
+    nComponents: setup.nComponents,
+    channels: setup.channels,
+    binWidthNs: dt,
+    firstEdgeNs: setup.firstEdgeNs,
+    periodNs: setup.periodNs,
+    irf: setup.irf,
+    scatter: setup.scatter,
+    scatterScale: Math.max(totalInRange, 1),
+    fitStart: i0,
+    fitEnd: i1,
+    tailStart: setup.tailStart,
+  });
+  const L = model.layout;
+  const P = L.count;
+  const nc = setup.nComponents;
+  const lower = new Float64Array(P).fill(-Infinity);
+  const upper = new Float64Array(P).fill(Infinity);
+  const fixed = new Uint8Array(P);
+  const base = new Float64Array(P);
+  const fix = setup.fix;
+  const bound = (name: string) => setup.bounds[name] ?? {};
+
+  const tauMin: number[] = [];
+  const tauMax: number[] = [];
+  const fixedTau: number[] = [];
+  for (let j = 0; j < nc; j++) {
+    const name = `tau${j + 1}Ns`;
+    tauMin.push(bound(name).min ?? TAU_MIN_NS);
+    tauMax.push(bound(name).max ?? TAU_MAX_NS);
+    lower[L.lnTau[j]] = Math.log(tauMin[j]);
+    upper[L.lnTau[j]] = Math.log(tauMax[j]);
+    fixedTau.push(fix[name] ?? NaN);
+    if (fix[name] !== undefined) {
+      fixed[L.lnTau[j]] = 1;
+      base[L.lnTau[j]] = Math.log(fix[name]);
+    }
+    if (!setup.allowNegativeAmplitudes) lower[L.amplitude[j]] = 0;
+  }
+  lower[L.background] = bound('background').min ?? 0;
+  upper[L.background] = bound('background').max ?? Infinity;
+  if (fix.background !== undefined) {
+    fixed[L.background] = 1;
+    base[L.background] = fix.background;
+  }
+  if (L.scatter >= 0) {
+    lower[L.scatter] = bound('scatter').min ?? 0;
+    upper[L.scatter] = bound('scatter').max ?? Infinity;
+    if (fix.scatter !== undefined) {
+      fixed[L.scatter] = 1;
+      base[L.scatter] = fix.scatter;
+    }
+  }
+  if (L.shift >= 0) {
+    lower[L.shift] = bound('shiftNs').min ?? -SHIFT_MAX_NS;
+    upper[L.shift] = bound('shiftNs').max ?? SHIFT_MAX_NS;
+    base[L.shift] = fix.shiftNs ?? 0;
+    if (fix.shiftNs !== undefined) fixed[L.shift] = 1;
+  }
+  let peak = i0;
+  for (let i = i0; i < i1; i++) if (counts[i] > counts[peak]) peak = i;
+  if (L.irfCenter >= 0) {
+    const window = setup.channels * dt;
+    lower[L.irfCenter] = bound('irfCenterNs').min ?? setup.firstEdgeNs;
+    upper[L.irfCenter] = bound('irfCenterNs').max ?? setup.firstEdgeNs + window;
+    lower[L.irfSigma] = (bound('irfFwhmNs').min ?? dt / 4) / FWHM_PER_SIGMA;
+    upper[L.irfSigma] = (bound('irfFwhmNs').max ?? window / 4) / FWHM_PER_SIGMA;
+    // Start: centre at the rising edge's half maximum, width from the 10–90 % rise.
+    let half = peak;
+    while (half > 0 && counts[half - 1] >= counts[peak] / 2) half--;
+    base[L.irfCenter] = fix.irfCenterNs ?? setup.firstEdgeNs + (half + 0.5) * dt;
+    base[L.irfSigma] = (fix.irfFwhmNs ?? Math.max(setup.irfFwhmChannels * dt, dt)) / FWHM_PER_SIGMA;
+    if (fix.irfCenterNs !== undefined) fixed[L.irfCenter] = 1;
+    if (fix.irfFwhmNs !== undefined) fixed[L.irfSigma] = 1;
+  }
+
+  // Tail lifetime from the log-slope after the peak, above a rough background.
+  let bgGuess = 0;
+  const pre = Math.max(0, Math.min(peak - i0 - Math.ceil(3 * setup.irfFwhmChannels), 200));
+  if (pre >= 5) {
+    for (let i = i0; i < i0 + pre; i++) bgGuess += counts[i];
+    bgGuess /= pre;
+  }
+  const tailFrom =
+    setup.mode === 'none' ? Math.max(i0, setup.tailStart) : peak + Math.ceil(2 * setup.irfFwhmChannels);
+  let tauTail = tailLifetimeEstimate(counts, tailFrom, i1, setup.periodNs ? 0 : bgGuess, dt);
+  if (!(tauTail > 0)) tauTail = (nFit * dt) / 5;
+  tauTail = Math.min(Math.max(tauTail, 2 * TAU_MIN_NS), TAU_MAX_NS / 2);
+
+  const starts = gridStarts(model, base, counts, {
+    tauTailNs: tauTail,
+    tauMinNs: tauMin,
+    tauMaxNs: tauMax,
+    fixedTauNs: fixedTau,
+    fixedBackground: fix.background ?? null,
+    fixedScatter: L.scatter >= 0 ? (fix.scatter ?? null) : null,
+    allowNegative: setup.allowNegativeAmplitudes,
+    keep: nc === 1 ? 1 : 3,
+  });
+  if (starts.length === 0) throw new ComputationError('no starting values could be found for this decay');
+
+  const free: number[] = [];
+  const freeRow = new Int32Array(P).fill(-1);
+  for (let k = 0; k < P; k++) {
+    if (!fixed[k]) {
+      freeRow[k] = free.length;
+      free.push(k);
+    }
+  }
+  const F = free.length;
+  const data = counts.subarray(i0, i1);
+  let weights: Float64Array | undefined;
+  if (setup.statistic === 'neyman') {
+    weights = new Float64Array(nFit);
+    for (let i = 0; i < nFit; i++) weights[i] = 1 / Math.max(data[i], 1);
+  }
+  const all = new Float64Array(P);
+  const full = new Float64Array(setup.channels);
+  const problem: LmProblem = {
+    nParams: F,
+    nPoints: nFit,
+    data: Float64Array.from(data),
+    weights,
+    loss: setup.statistic === 'neyman' ? 'leastSquares' : setup.statistic,
+    lower: Float64Array.from(free, (k) => lower[k]),
+    upper: Float64Array.from(free, (k) => upper[k]),
+    evaluate(p, out, jac) {
+      for (let f = 0; f < F; f++) all[free[f]] = p[f];
+      if (!model.evaluate(all, full, jac, freeRow)) return false;
+      out.set(full.subarray(i0, i1));
+      return true;
+    },
+  };
+
+  let best: { lm: LmResult; all: Float64Array } | null = null;
+  for (const start of starts) {
+    all.set(start.params);
+    const p0 = Float64Array.from(free, (k) => start.params[k]);
+    const lm = levenbergMarquardt(problem, p0, {
+      maxIterations: setup.maxIterations,
+      ftol: 1e-10,
+      atol: 1e-7,
+      xtol: 1e-9,
+    });
+    if (!best || (Number.isFinite(lm.objective) && !(lm.objective >= best.lm.objective))) {
+      const final = Float64Array.from(start.params);
+      for (let f = 0; f < F; f++) final[free[f]] = lm.params[f];
+      best = { lm, all: final };
+    }
+  }
+  const chosen = best!;
+  if (chosen.lm.stop === 'nonFinite' || !Number.isFinite(chosen.lm.objective))
+    throw new ComputationError('the fit failed: the model could not be evaluated at any starting point');
+  const modelFull = new Float64Array(setup.channels);
+  model.evaluate(chosen.all, modelFull, null, freeRow);
+  return { model, all: chosen.all, free, lm: chosen.lm, modelFull, lower, upper };
+}
+
+/** Fixed-width number for messages. */
+const fmt = (v: number) =>
+  Math.abs(v) >= 1e4 || (Math.abs(v) < 1e-3 && v !== 0)
+    ? v.toExponential(3)
+    : Number(v.toPrecision(4)).toString();
+
+function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult {
+  const { model, lm, free, modelFull } = run;
+  const L = model.layout;
+  const P = L.count;
+  const nc = setup.nComponents;
+  const i0 = setup.fitStart;
+  const i1 = setup.fitEnd;
+  const nFit = i1 - i0;
+  const dt = setup.binWidthNs;
+  const counts = setup.counts;
+  const warnings: string[] = [...setup.notes];
+
+  // Covariance over all parameters (internal units: ln τ, σ of the Gaussian IRF); 0 for fixed ones.
+  const F = free.length;
+  const invH = invertSymmetric(lm.hessian, F);
+  const cov = new Float64Array(P * P);
+  if (invH) {
+    for (let a = 0; a < F; a++) for (let b = 0; b < F; b++) cov[free[a] * P + free[b]] = 2 * invH[a * F + b];
+  } else {
+    cov.fill(NaN);
+    warnings.push(
+      'the Fisher information is singular: some parameters are not determined by the data, errors are unavailable',
+    );
+  }
+  let all = run.all;
+
+  // Ascending lifetimes unless one was fixed by name.
+  const anyTauFixed = [...Object.keys(setup.fix), ...Object.keys(setup.bounds)].some((k) =>
+    /^tau\dNs$/.test(k),
+  );
+  const order = Array.from({ length: nc }, (_, j) => j);
+  if (!anyTauFixed) order.sort((p, q) => all[L.lnTau[p]] - all[L.lnTau[q]]);
+  const perm = Array.from({ length: P }, (_, k) => k);
+  for (let j = 0; j < nc; j++) {
+    perm[L.amplitude[j]] = L.amplitude[order[j]];
+    perm[L.lnTau[j]] = L.lnTau[order[j]];
+  }
+  all = Float64Array.from(perm, (k) => all[k]);
+  const covP = new Float64Array(P * P);
+  for (let a = 0; a < P; a++) for (let b = 0; b < P; b++) covP[a * P + b] = cov[perm[a] * P + perm[b]];
+  const atBoundAll = new Array<boolean>(P).fill(false);
+  free.forEach((k, f) => (atBoundAll[k] = lm.atBound[f]));
+  const atBound = perm.map((k) => atBoundAll[k]);
+  const isFree = new Array<boolean>(P).fill(false);
+  free.forEach((k) => (isFree[k] = true));
+  const freeP = perm.map((k) => isFree[k]);
+
+  const varOf = (g: Float64Array) => {
+    let v = 0;
+    for (let a = 0; a < P; a++) {
+      if (g[a] === 0) continue;
+      for (let b = 0; b < P; b++) if (g[b] !== 0) v += g[a] * covP[a * P + b] * g[b];
+    }
+    return v;
+  };
+  const sd = (k: number) => Math.sqrt(Math.max(covP[k * P + k], 0));
+
+  const amps = Array.from({ length: nc }, (_, j) => all[L.amplitude[j]]);
+  const taus = Array.from({ length: nc }, (_, j) => Math.exp(all[L.lnTau[j]]));
+  const sumA = amps.reduce((s, a) => s + a, 0);
+  const V = amps.reduce((s, a, j) => s + a * taus[j], 0);
+  const U = amps.reduce((s, a, j) => s + a * taus[j] * taus[j], 0);
+  const tauAmp = V / sumA;
+  const tauInt = U / V;
+  const g = new Float64Array(P);
+  for (let j = 0; j < nc; j++) {
+    g[L.amplitude[j]] = (taus[j] - tauAmp) / sumA;
+    g[L.lnTau[j]] = (amps[j] * taus[j]) / sumA;
+  }
+  const tauAmpErr = Math.sqrt(varOf(g));
+  g.fill(0);
+  for (let j = 0; j < nc; j++) {
+    g[L.amplitude[j]] = (taus[j] * taus[j] - tauInt * taus[j]) / V;
+    g[L.lnTau[j]] = (2 * amps[j] * taus[j] * taus[j] - tauInt * amps[j] * taus[j]) / V;
+  }
+  const tauIntErr = Math.sqrt(varOf(g));
+
+  const components: ComponentResult[] = [];
+  for (let k = 0; k < nc; k++) {
+    g.fill(0);
+    const fk = (amps[k] * taus[k]) / V;
+    for (let j = 0; j < nc; j++) {
+      g[L.amplitude[j]] = ((j === k ? taus[k] : 0) - fk * taus[j]) / V;
+      g[L.lnTau[j]] = ((j === k ? amps[k] * taus[k] : 0) - fk * amps[j] * taus[j]) / V;
+    }
+    const tauFixed = !freeP[L.lnTau[k]];
+    const c: ComponentResult = {
+      tauNs: taus[k],
+      tauErrNs: tauFixed ? 0 : taus[k] * sd(L.lnTau[k]),
+      amplitude: amps[k],
+      amplitudeErr: sd(L.amplitude[k]),
+      intensityFraction: fk,
+      intensityFractionErr: Math.sqrt(varOf(g)),
+      amplitudeFraction: amps[k] / sumA,
+    };
+    if (tauFixed) c.fixed = true;
+    components.push(c);
+  }
+
+  // Statistics over the fit range.
+  const data = counts.subarray(i0, i1);
+  const m = modelFull.subarray(i0, i1);
+  let chi2 = 0;
+  let chi2Spread = 0;
+  for (let i = 0; i < nFit; i++) {
+    if (m[i] > 0) {
+      const r = data[i] - m[i];
+      chi2 += (r * r) / m[i];
+      chi2Spread += 2 + 1 / m[i];
+    }
+  }
+  const deviance = lossValue('poisson', data, m, undefined);
+  const dof = nFit - F;
+  const resid = new Float64Array(nFit);
+  for (let i = 0; i < nFit; i++) {
+    const n = data[i];
+    const mi = m[i];
+    const r = n - mi;
+    if (setup.statistic === 'poisson') {
+      const d = n > 0 ? 2 * (mi - n + n * Math.log(n / mi)) : 2 * mi;
+      resid[i] = Math.sign(r) * Math.sqrt(Math.max(d, 0));
+    } else if (setup.statistic === 'neyman') resid[i] = r / Math.sqrt(Math.max(n, 1));
+    else resid[i] = mi > 0 ? r / Math.sqrt(mi) : 0;
+  }
+  const dw = durbinWatson(resid);
+  const runs = runsTest(resid);
+  const ic = informationCriteria(lm.objective, F, nFit);
+
+  // Warnings.
+  const names = L.names;
+  const lowerP = perm.map((k) => run.lower[k]);
+  for (let k = 0; k < P; k++) {
+    if (!freeP[k] || !atBound[k]) continue;
+    if (k === L.background || k === L.scatter) continue; // 0 background or scatter simply means none
+    const isTau = L.lnTau.includes(k);
+    const shown = isTau ? Math.exp(all[k]) : k === L.irfSigma ? all[k] * FWHM_PER_SIGMA : all[k];
+    const unit = isTau || k === L.shift || k === L.irfCenter || k === L.irfSigma ? ' ns' : '';
+    const side = all[k] <= lowerP[k] ? 'lower' : 'upper';
+    warnings.push(`${names[k]} at ${side} bound ${fmt(shown)}${unit}`);
+  }
+  const peakCounts = Math.max(...data);
+  let totalCounts = 0;
+  for (let i = 0; i < nFit; i++) totalCounts += data[i];
+  if (nc >= 2 && peakCounts < 1e4)
+    warnings.push(
+      `peak counts ${fmt(peakCounts)} are below the ≈10 000 usually needed to separate ${nc} lifetimes reliably`,
+    );
+  else if (nc === 1 && peakCounts < 100)
+    warnings.push(
+      `peak counts ${fmt(peakCounts)} are very low: the lifetime is uncertain and the χ² less meaningful`,
+    );
+  const irfFwhmNs =
+    setup.mode === 'gaussian'
+      ? all[L.irfSigma] * FWHM_PER_SIGMA
+      : setup.mode === 'measured'
+        ? setup.irfFwhmChannels * dt
+        : NaN;
+  const windowNs = setup.channels * dt;
+  components.forEach((c, k) => {
+    if (irfFwhmNs > 0 && c.tauNs < irfFwhmNs / 10)
+      warnings.push(
+        `tau${k + 1}Ns ${fmt(c.tauNs)} ns is below a tenth of the IRF width (${fmt(irfFwhmNs)} ns FWHM): it depends on the IRF's exact shape`,
+      );
+    if (c.tauNs > windowNs)
+      warnings.push(`tau${k + 1}Ns ${fmt(c.tauNs)} ns is longer than the ${fmt(windowNs)} ns window`);
+  });
+  for (let a = 0; a < nc; a++)
+    for (let b = a + 1; b < nc; b++) {
+      const ea = components[a].tauErrNs;
+      const eb = components[b].tauErrNs;
+      const sep = Math.abs(components[a].tauNs - components[b].tauNs);
+      if (!(sep > 2 * Math.hypot(ea, eb)))
+        warnings.push(
+          `tau${a + 1}Ns and tau${b + 1}Ns are not resolved: they differ by ${fmt(sep)} ns, less than twice their combined error`,
+        );
+    }
+  const chi2Red = chi2 / dof;
+  const spread = Math.sqrt(chi2Spread) / dof;
+  if (chi2Red > 1 + 3 * spread)
+    warnings.push(
+      `chi2Reduced ${chi2Red.toFixed(3)} lies ${((chi2Red - 1) / spread).toFixed(1)} standard deviations (${spread.toFixed(3)}) above 1: the model does not describe the data within counting noise`,
+    );
+  if (runs.pValue < 0.01)
+    warnings.push(
+      `the residual signs form too ${runs.z < 0 ? 'few' : 'many'} runs (p = ${fmt(runs.pValue)}): systematic misfit`,
+    );
+  if (lm.stop !== 'converged')
+    warnings.push(`the optimiser stopped without converging (${lm.stop}) after ${lm.iterations} iterations`);
+
+  // Curves on the full channel axis.
+  const irfCurve = model.irfCurve(all);
+  let irfMax = 0;
+  for (let i = 0; i < irfCurve.length; i++) irfMax = Math.max(irfMax, irfCurve[i]);
+  let dataMax = 0;
+  for (let i = 0; i < counts.length; i++) dataMax = Math.max(dataMax, counts[i]);
+  const n = setup.channels;
+  const modelCurve: (number | null)[] = new Array(n).fill(null);
+  const residCurve: (number | null)[] = new Array(n).fill(null);
+  for (let i = i0; i < i1; i++) {
+    modelCurve[i] = modelFull[i];
+    residCurve[i] = resid[i - i0];
+  }
+  const fixedOut: Record<string, number> = {};
+  for (const [k, v] of Object.entries(setup.fix)) fixedOut[k] = v;
+
+  const result: FitResult = {
+    schemaVersion: SCHEMA_VERSION,
+    statistic: setup.statistic,
+    nComponents: nc,
+    components,
+    tauAmpAvgNs: tauAmp,
+    tauAmpAvgErrNs: tauAmpErr,
+    tauIntAvgNs: tauInt,
+    tauIntAvgErrNs: tauIntErr,
+    shiftNs: L.shift >= 0 ? all[L.shift] : 0,
+    shiftErrNs: L.shift >= 0 ? sd(L.shift) : 0,
+    background: all[L.background],
+    backgroundErr: sd(L.background),
+    scatter: L.scatter >= 0 ? all[L.scatter] : 0,
+    scatterErr: L.scatter >= 0 ? sd(L.scatter) : 0,
+    chi2Reduced: chi2Red,
+    chi2,
+    deviance,
+    deviancePerDof: deviance / dof,
+    dof,
+    durbinWatson: dw,
+    runsZ: runs.z,
+    runsPValue: runs.pValue,
+    aic: ic.aic,
+    bic: ic.bic,
+    converged: lm.stop === 'converged',
+    stop: lm.stop,
+    iterations: lm.iterations,
+    warnings,
+    irfMode: setup.mode,
+    rangeNs: [setup.firstEdgeNs + i0 * dt, setup.firstEdgeNs + i1 * dt],
+    periodNs: setup.periodNs,
+    binWidthNs: dt,
+    peakCounts,
+    totalCounts,
+    fixed: fixedOut,
+    curves: {
+      timeNs: Array.from(decay.timeNs),
+      data: Array.from(counts),
+      model: modelCurve,
+      irf: irfMax > 0 ? Array.from(irfCurve, (v) => (v * dataMax) / irfMax) : [],
+      weightedResiduals: residCurve,
+      autocorrelation: Array.from(residualAutocorrelation(resid)),
+      fitStartIndex: i0,
+      fitEndIndex: i1 - 1,
+    },
+  };
+  if (setup.mode === 'gaussian') {
+    result.irfFwhmNs = all[L.irfSigma] * FWHM_PER_SIGMA;
+    result.irfFwhmErrNs = sd(L.irfSigma) * FWHM_PER_SIGMA;
+    result.irfCenterNs = all[L.irfCenter];
+    result.irfCenterErrNs = sd(L.irfCenter);
+  }
+  // Covariance of the free parameters in reported units (τ in ns, IRF width as FWHM).
+  const toReported = (k: number) =>
+    L.lnTau.includes(k) ? Math.exp(all[k]) : k === L.irfSigma ? FWHM_PER_SIGMA : 1;
+  const freeSorted = Array.from({ length: P }, (_, k) => k).filter((k) => freeP[k]);
+  result.covariance = {
+    names: freeSorted.map((k) => names[k]),
+    matrix: freeSorted.map((a) => freeSorted.map((b) => covP[a * P + b] * toReported(a) * toReported(b))),
+  };
+  return result;
+}

@@ -1,0 +1,231 @@
+import type { DecayModel } from './decayModel.js';
+import { choleskySolve } from './lm.js';
+
+/**
+ * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest
+ * lifetime's scale; a coarse geometric grid of lifetimes around it (τ_tail·2^k, k = −6 … 1) is tried
+ * in every combination, each with its amplitudes, background and scatter solved by weighted linear
+ * least squares (weights 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best
+ * few combinations start the full fit.
+ */
+
+/**
+ * Lifetime from the log-slope of the tail: a weighted straight line through ln(counts − background)
+ * from `from` on, over the channels still above max(20, 2 % of the peak) counts.
+ */
+export function tailLifetimeEstimate(
+  counts: ArrayLike<number>,
+  from: number,
+  to: number,
+  background: number,
+  binWidthNs: number,
+): number {
+  let peak = 0;
+  for (let i = from; i < to; i++) if (counts[i] - background > peak) peak = counts[i] - background;
+  const floor = Math.max(20, 0.02 * peak);
+  let sw = 0;
+  let sx = 0;
+  let sy = 0;
+  let sxx = 0;
+  let sxy = 0;
+  let run = 0;
+  for (let i = from; i < to; i++) {
+    const v = counts[i] - background;
+    if (v < floor) {
+      // Stop after the tail has stayed below the floor for a while (noise, or the next pulse).
+      if (++run > 20) break;
+      continue;
+    }
+    run = 0;
+    const y = Math.log(v);
+    const w = v;
+    sw += w;
+    sx += w * i;
+    sy += w * y;
+    sxx += w * i * i;
+    sxy += w * i * y;
+  }
+  const den = sw * sxx - sx * sx;
+  if (!(sw > 0) || !(den > 0)) return NaN;
+  const slope = (sw * sxy - sx * sy) / den;
+  return slope < 0 ? -binWidthNs / slope : NaN;
+}
+
+export interface StartCandidate {
+  /** Full parameter vector (layout of the DecayModel). */
+  params: Float64Array;
+  /** Weighted χ² of the linear solve, for ranking. */
+  chi2: number;
+}
+
+interface GridOptions {
+  tauTailNs: number;
+  tauMinNs: number[];
+  tauMaxNs: number[];
+  /** Lifetimes held fixed, per component (NaN = free). */
+  fixedTauNs: number[];
+  fixedBackground: number | null;
+  fixedScatter: number | null;
+  allowNegative: boolean;
+  keep: number;
+}
+
+/**
+ * Ranks lifetime combinations on the grid by the weighted χ² of their linear solve and returns the
+ * `keep` best as full parameter vectors (IRF parameters taken from `base`).
+ */
+export function gridStarts(
+  model: DecayModel,
+  base: Float64Array,
+  counts: Float64Array,
+  opts: GridOptions,
+): StartCandidate[] {
+  const s = model.setup;
+  const L = model.layout;
+  const nc = s.nComponents;
+  const i0 = s.fitStart;
+  const i1 = s.fitEnd;
+  const nFit = i1 - i0;
+
+  // Grid lifetimes for the free components, ascending.
+  const freeSlots: number[] = [];
+  for (let j = 0; j < nc; j++) if (!(opts.fixedTauNs[j] > 0)) freeSlots.push(j);
+  const lo = Math.min(...opts.tauMinNs);
+  const hi = Math.max(...opts.tauMaxNs);
+  let grid: number[];
+  if (nc === 1) grid = [opts.tauTailNs / 2, opts.tauTailNs, opts.tauTailNs * 2];
+  else grid = [-6, -5, -4, -3, -2, -1, 0, 1].map((k) => opts.tauTailNs * 2 ** k);
+  grid = grid.map((t) => Math.min(hi, Math.max(lo, t)));
+  grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
+  while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
+
+  // Columns: grid bases, fixed-lifetime bases, background, scatter.
+  const columns: Float64Array[] = [];
+  const full = new Float64Array(s.channels);
+  for (const t of grid) {
+    model.basisCurve(base, t, full);
+    columns.push(Float64Array.from(full.subarray(i0, i1)));
+  }
+  const fixedCol: number[] = [];
+  for (let j = 0; j < nc; j++) {
+    if (opts.fixedTauNs[j] > 0) {
+      model.basisCurve(base, opts.fixedTauNs[j], full);
+      fixedCol[j] = columns.length;
+      columns.push(Float64Array.from(full.subarray(i0, i1)));
+    }
+  }
+  const y = new Float64Array(nFit);
+  const w = new Float64Array(nFit);
+  const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
+  for (let i = 0; i < nFit; i++) {
+    let v = counts[i0 + i];
+    w[i] = 1 / Math.max(v, 1);
+    if (opts.fixedBackground !== null) v -= opts.fixedBackground;
+    if (irfCurve && opts.fixedScatter !== null) v -= opts.fixedScatter * s.scatterScale * irfCurve[i0 + i];
+    y[i] = v;
+  }
+  let bgCol = -1;
+  if (opts.fixedBackground === null) {
+    bgCol = columns.length;
+    columns.push(new Float64Array(nFit).fill(1));
+  }
+  let scCol = -1;
+  if (irfCurve && opts.fixedScatter === null) {
+    scCol = columns.length;
+    const c = new Float64Array(nFit);
+    for (let i = 0; i < nFit; i++) c[i] = s.scatterScale * irfCurve[i0 + i];
+    columns.push(c);
+  }
+  const C = columns.length;
+  const gram = new Float64Array(C * C);
+  const rhs = new Float64Array(C);
+  let yWy = 0;
+  for (let i = 0; i < nFit; i++) yWy += w[i] * y[i] * y[i];
+  for (let a = 0; a < C; a++) {
+    const ca = columns[a];
+    let r = 0;
+    for (let i = 0; i < nFit; i++) r += w[i] * ca[i] * y[i];
+    rhs[a] = r;
+    for (let b = 0; b <= a; b++) {
+      const cb = columns[b];
+      let g = 0;
+      for (let i = 0; i < nFit; i++) g += w[i] * ca[i] * cb[i];
+      gram[a * C + b] = g;
+      gram[b * C + a] = g;
+    }
+  }
+
+  // Every ascending choice of grid lifetimes for the free slots.
+  const combos: number[][] = [];
+  const pick = (startAt: number, chosen: number[]) => {
+    if (chosen.length === freeSlots.length) {
+      combos.push(chosen.slice());
+      return;
+    }
+    for (let g = startAt; g < grid.length; g++) pick(g + 1, [...chosen, g]);
+  };
+  pick(0, []);
+
+  const maxP = nc + 2;
+  const A = new Float64Array(maxP * maxP);
+  const Lw = new Float64Array(maxP * maxP);
+  const b = new Float64Array(maxP);
+  const sol = new Float64Array(maxP);
+  const results: StartCandidate[] = [];
+  for (const combo of combos) {
+    // Column per component, then background and scatter.
+    const cols: number[] = [];
+    let f = 0;
+    for (let j = 0; j < nc; j++) cols.push(opts.fixedTauNs[j] > 0 ? fixedCol[j] : combo[f++]);
+    if (bgCol >= 0) cols.push(bgCol);
+    if (scCol >= 0) cols.push(scCol);
+    const active = cols.map(() => true);
+    const coef = new Float64Array(cols.length);
+    let ok = false;
+    for (let attempt = 0; attempt <= cols.length; attempt++) {
+      const idx = cols.map((_, k) => k).filter((k) => active[k]);
+      const P = idx.length;
+      for (let a = 0; a < P; a++) {
+        b[a] = rhs[cols[idx[a]]];
+        for (let c = 0; c < P; c++) A[a * P + c] = gram[cols[idx[a]] * C + cols[idx[c]]];
+        A[a * P + a] *= 1 + 1e-12;
+      }
+      coef.fill(0);
+      if (P > 0 && !choleskySolve(A, b, sol, Lw, P)) break;
+      for (let a = 0; a < P; a++) coef[idx[a]] = sol[a];
+      // Drop the most negative coefficient that must not be negative, and solve again.
+      let worst = -1;
+      for (let k = 0; k < cols.length; k++) {
+        const mayBeNegative = k < nc && opts.allowNegative;
+        if (active[k] && !mayBeNegative && coef[k] < 0 && (worst < 0 || coef[k] < coef[worst])) worst = k;
+      }
+      if (worst < 0) {
+        ok = true;
+        break;
+      }
+      active[worst] = false;
+    }
+    if (!ok) continue;
+    // χ² = yᵀWy − 2cᵀr + cᵀGc.
+    let chi2 = yWy;
+    for (let a = 0; a < cols.length; a++) {
+      chi2 -= 2 * coef[a] * rhs[cols[a]];
+      for (let c = 0; c < cols.length; c++) chi2 += coef[a] * coef[c] * gram[cols[a] * C + cols[c]];
+    }
+    const params = Float64Array.from(base);
+    let maxAmp = 0;
+    for (let j = 0; j < nc; j++) maxAmp = Math.max(maxAmp, Math.abs(coef[j]));
+    f = 0;
+    for (let j = 0; j < nc; j++) {
+      const tau = opts.fixedTauNs[j] > 0 ? opts.fixedTauNs[j] : grid[combo[f++]];
+      params[L.lnTau[j]] = Math.log(tau);
+      // A component switched off by the linear solve restarts small but alive, so that it can move.
+      params[L.amplitude[j]] = coef[j] !== 0 ? coef[j] : 0.01 * maxAmp || 1;
+    }
+    if (bgCol >= 0) params[L.background] = Math.max(coef[cols.indexOf(bgCol)], 0);
+    if (scCol >= 0) params[L.scatter] = Math.max(coef[cols.indexOf(scCol)], 0);
+    results.push({ params, chi2 });
+  }
+  results.sort((p, q) => p.chi2 - q.chi2);
+  return results.slice(0, opts.keep);
+}

@@ -1,0 +1,229 @@
+/**
+ * Reconvolution kernels on a channel axis: a measured, piecewise-constant instrument response
+ * convolved with exponential decays, every term integrated exactly over each channel.
+ *
+ * Conventions shared by every kernel here:
+ * - Channel i covers [iΔ, (i+1)Δ) with Δ the bin width, ns.
+ * - `irf` holds IRF fractions per channel: baseline removed, non-negative, summing to 1
+ *   (see `prepareIrf`).
+ * - A basis curve is in counts per channel for a unit pre-exponential factor: for a narrow IRF,
+ *   basisᵢ ≈ e^{−tᵢ/τ}, so an amplitude is "counts per channel at t = 0 of the unconvolved decay".
+ * - Derivatives with respect to the lifetime are taken with respect to ln τ (τ·∂/∂τ), which is what
+ *   the fitter varies.
+ *
+ * Exact channel integration. Let the IRF be constant, qₖ/Δ, on channel k and h = Δ/τ, x = e^{−h}.
+ * The convolution y(t) = ∫IRF(t′)e^{−(t−t′)/τ}dt′ integrated over channel i is
+ *   Yᵢ/Δ = φ(h)·qᵢ + ψ(h)²·Sᵢ,   Sᵢ₊₁ = x·Sᵢ + qᵢ,  S₀ = 0,
+ * with φ(h) = (h − 1 + e^{−h})/h² (the channel's own contribution) and ψ(h) = (1 − e^{−h})/h (an
+ * exponential tail integrated over one channel). This is an O(N) recursion and holds for any τ
+ * relative to Δ; as h → 0 it tends to the discrete convolution Σₖ qₖ e^{−(i−k)h}.
+ *
+ * Repetition period T (≥ the window NΔ): earlier pulses add Σₙ≥₁ Yᵢ(t + nT). Once the shifted IRF is
+ * complete inside the window their contribution is the window-end tail continued,
+ *   Pᵢ = ψ(h)²·S_N·e^{−(T/Δ − N + i)h}/(1 − e^{−T/τ}),
+ * exact under that condition (the geometric sum over previous pulses).
+ *
+ * Sub-channel shift s (ns) of the IRF: the channel integrals of the IRF moved by s = (m + f)Δ are
+ * (1 − f)·q_{k−m} + f·q_{k−m−1}, i.e. linear interpolation between channels; the model is linear in the
+ * IRF, so its derivative with respect to s is the same recursion run on ∂q/∂s.
+ */
+
+/** φ(h) = (h − 1 + e^{−h})/h² and its derivative, by series where the closed form cancels. */
+function phi(h: number): number {
+  if (h < 1e-2) return 0.5 - h / 6 + (h * h) / 24 - (h * h * h) / 120 + (h * h * h * h) / 720;
+  return (h - 1 + Math.exp(-h)) / (h * h);
+}
+function dPhi(h: number): number {
+  if (h < 1e-2) return -1 / 6 + h / 12 - (h * h) / 40 + (h * h * h) / 180 - (h * h * h * h) / 1008;
+  const e = Math.exp(-h);
+  return (1 - e) / (h * h) - (2 * (h - 1 + e)) / (h * h * h);
+}
+/** ψ(h) = (1 − e^{−h})/h and its derivative. */
+export function psi(h: number): number {
+  if (h < 1e-2) return 1 - h / 2 + (h * h) / 6 - (h * h * h) / 24 + (h * h * h * h) / 120;
+  return -Math.expm1(-h) / h;
+}
+function dPsi(h: number): number {
+  if (h < 1e-2) return -0.5 + h / 3 - (h * h) / 8 + (h * h * h) / 30 - (h * h * h * h) / 144;
+  const e = Math.exp(-h);
+  return (e * (h + 1) - 1) / (h * h);
+}
+
+export interface PreparedIrf {
+  /** IRF fractions per channel (baseline removed, clipped at 0, unit sum). */
+  fractions: Float64Array;
+  /** Baseline subtracted, counts per channel. */
+  baseline: number;
+  /** Channel of the IRF maximum. */
+  peakIndex: number;
+  /** Full width at half maximum, channels (linear interpolation on both flanks). */
+  fwhmChannels: number;
+}
+
+/**
+ * Removes the IRF's own background and normalises it to unit sum. The baseline is the mean of the
+ * channels well before the rising edge (before peak − 4 FWHM), when there are at least 8 of them;
+ * otherwise none is subtracted. Returns null when nothing is left (an empty or flat IRF).
+ */
+export function prepareIrf(counts: ArrayLike<number>): PreparedIrf | null {
+  const n = counts.length;
+  let peakIndex = 0;
+  for (let i = 1; i < n; i++) if (counts[i] > counts[peakIndex]) peakIndex = i;
+  const rawWidth = fwhm(counts, peakIndex, 0);
+  const preEnd = Math.floor(peakIndex - 4 * Math.max(rawWidth, 1));
+  let baseline = 0;
+  if (preEnd >= 8) {
+    let s = 0;
+    for (let i = 0; i < preEnd; i++) s += counts[i];
+    baseline = s / preEnd;
+  }
+  const fractions = new Float64Array(n);
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    const v = counts[i] - baseline;
+    fractions[i] = v > 0 ? v : 0;
+    sum += fractions[i];
+  }
+  if (!(sum > 0) || counts[peakIndex] - baseline <= 0) return null;
+  for (let i = 0; i < n; i++) fractions[i] /= sum;
+  return { fractions, baseline, peakIndex, fwhmChannels: fwhm(fractions, peakIndex, 0) };
+}
+
+/** Full width at half maximum (channels) of a peak at `peak`, above `base`, by linear interpolation. */
+export function fwhm(y: ArrayLike<number>, peak: number, base: number): number {
+  const half = base + (y[peak] - base) / 2;
+  let left = peak;
+  while (left > 0 && y[left - 1] > half) left--;
+  let right = peak;
+  while (right < y.length - 1 && y[right + 1] > half) right++;
+  let l = left;
+  if (left > 0) l = left - 1 + (half - y[left - 1]) / (y[left] - y[left - 1]);
+  let r = right;
+  if (right < y.length - 1) r = right + (y[right] - half) / (y[right] - y[right + 1]);
+  return r - l;
+}
+
+/**
+ * IRF moved later by `shiftChannels` (may be negative, need not be whole), written into `out`; when
+ * `dOut` is given it receives ∂out/∂shift per channel of shift. Channels moved past either end are lost.
+ */
+export function shiftIrf(
+  irf: Float64Array,
+  shiftChannels: number,
+  out: Float64Array,
+  dOut: Float64Array | null,
+): void {
+  const n = irf.length;
+  const m = Math.floor(shiftChannels);
+  const f = shiftChannels - m;
+  for (let k = 0; k < n; k++) {
+    const j0 = k - m;
+    const j1 = j0 - 1;
+    const a = j0 >= 0 && j0 < n ? irf[j0] : 0;
+    const b = j1 >= 0 && j1 < n ? irf[j1] : 0;
+    out[k] = (1 - f) * a + f * b;
+    if (dOut) dOut[k] = b - a;
+  }
+}
+
+/**
+ * Channel-integrated reconvolution of `irf` (fractions per channel, already shifted) with e^{−t/τ}.
+ * Writes the basis curve into `out` (counts per channel for unit amplitude) and, when given, its
+ * derivative with respect to ln τ into `dLnTau`, and the basis run on `dIrf` (∂irf/∂shift) into
+ * `dShift`. `periodNs` null or ≤ 0 means a single pulse. No allocation.
+ */
+export function exponentialBasis(
+  irf: Float64Array,
+  binWidthNs: number,
+  tauNs: number,
+  periodNs: number | null,
+  out: Float64Array,
+  dLnTau: Float64Array | null,
+  dIrf: Float64Array | null,
+  dShift: Float64Array | null,
+): void {
+  const n = irf.length;
+  const h = binWidthNs / tauNs;
+  const x = Math.exp(-h);
+  const A = phi(h);
+  const ps = psi(h);
+  const K = ps * ps;
+  // ∂/∂lnτ of h is −h.
+  const dA = -h * dPhi(h);
+  const dK = -h * 2 * ps * dPsi(h);
+  const dx = x * h;
+  let S = 0;
+  let dS = 0;
+  let sS = 0;
+  for (let i = 0; i < n; i++) {
+    const q = irf[i];
+    out[i] = A * q + K * S;
+    if (dLnTau) dLnTau[i] = dA * q + dK * S + K * dS;
+    if (dShift && dIrf) {
+      const dq = dIrf[i];
+      dShift[i] = A * dq + K * sS;
+      sS = x * sS + dq;
+    }
+    // Order matters: dS uses the old S.
+    dS = x * dS + dx * S;
+    S = x * S + q;
+  }
+  if (periodNs !== null && periodNs > 0) {
+    const R = periodNs / binWidthNs;
+    const oneMinusR = -Math.expm1(-R * h);
+    const r = 1 - oneMinusR;
+    // E_i = e^{−(R − N + i)h}, advanced by ×x per channel.
+    let E = Math.exp(-(R - n) * h);
+    const c = (K * S) / oneMinusR;
+    const dcTau = (dK * S + K * dS) / oneMinusR + (c * r * R * h) / oneMinusR;
+    const cShift = (K * sS) / oneMinusR;
+    for (let i = 0; i < n; i++) {
+      const Pi = c * E;
+      out[i] += Pi;
+      if (dLnTau) dLnTau[i] += dcTau * E + Pi * (R - n + i) * h;
+      if (dShift && dIrf) dShift[i] += cShift * E;
+      E *= x;
+    }
+  }
+}
+
+/**
+ * Tail model without an IRF: e^{−(t − t₀)/τ} integrated over each channel from `startIndex` on
+ * (t₀ = the left edge of that channel), 0 before it; with a repetition period every pulse's tail adds
+ * the factor 1/(1 − e^{−T/τ}). Derivative with respect to ln τ into `dLnTau` when given.
+ */
+export function tailBasis(
+  n: number,
+  startIndex: number,
+  binWidthNs: number,
+  tauNs: number,
+  periodNs: number | null,
+  out: Float64Array,
+  dLnTau: Float64Array | null,
+): void {
+  const h = binWidthNs / tauNs;
+  const x = Math.exp(-h);
+  const ps = psi(h);
+  const dps = -h * dPsi(h);
+  let g = 1;
+  let dg = 0;
+  if (periodNs !== null && periodNs > 0) {
+    const R = periodNs / binWidthNs;
+    const oneMinusR = -Math.expm1(-R * h);
+    g = 1 / oneMinusR;
+    dg = (g * (1 - oneMinusR) * R * h) / oneMinusR;
+  }
+  let E = 1;
+  for (let i = 0; i < n; i++) {
+    if (i < startIndex) {
+      out[i] = 0;
+      if (dLnTau) dLnTau[i] = 0;
+      continue;
+    }
+    const k = i - startIndex;
+    out[i] = g * ps * E;
+    // ∂E/∂lnτ = E·k·h.
+    if (dLnTau) dLnTau[i] = dg * ps * E + g * dps * E + g * ps * E * k * h;
+    E *= x;
+  }
+}
