@@ -16,7 +16,17 @@ const UNIT_WORDS: Record<string, TimeUnit> = {
   s: 's',
 };
 
-const TIME_STEMS = ['time', 't', 'delay', 'tau_axis', 'arrival', 'arrival_time', 'arrivaltime', 'dtime', 'microtime'];
+const TIME_STEMS = [
+  'time',
+  't',
+  'delay',
+  'tau_axis',
+  'arrival',
+  'arrival_time',
+  'arrivaltime',
+  'dtime',
+  'microtime',
+];
 const CHANNEL_NAMES = ['channel', 'channels', 'chan', 'ch', 'bin', 'index', 'channel_index', 'tac_channel'];
 
 /** Splits `name_unit`, `name (unit)`, `name [unit]`, `name/unit`, `name in unit` into its parts. */
@@ -45,7 +55,9 @@ export function classifyTimeColumn(header: string): TimeColumnKind {
   if (lower in UNIT_WORDS) return { kind: 'time', unit: UNIT_WORDS[lower] };
   const { stem, unit } = splitNameUnit(header);
   if (!TIME_STEMS.includes(stem)) {
-    return TIME_STEMS.includes(lower.replace(/\s+/g, '_')) ? { kind: 'time-without-unit', unitText: null } : null;
+    return TIME_STEMS.includes(lower.replace(/\s+/g, '_'))
+      ? { kind: 'time-without-unit', unitText: null }
+      : null;
   }
   if (unit !== null && unit in UNIT_WORDS) return { kind: 'time', unit: UNIT_WORDS[unit] };
   return { kind: 'time-without-unit', unitText: unit };

@@ -16,16 +16,21 @@ export function cropHistogram(h: Histogram, window: CropWindow): Histogram {
   const start = window.startNs ?? -Infinity;
   const end = window.endNs ?? Infinity;
   if (Number.isNaN(start) || Number.isNaN(end) || !(end > start)) {
-    throw new InputError(`the crop window [${start}, ${end}) ns is empty or not a number`, { file: h.source });
+    throw new InputError(`the crop window [${start}, ${end}) ns is empty or not a number`, {
+      file: h.source,
+    });
   }
   let first = 0;
   while (first < h.timeNs.length && h.timeNs[first] < start) first++;
   let last = first;
   while (last < h.timeNs.length && h.timeNs[last] < end) last++;
   if (last === first) {
-    throw new InputError(`the crop window [${start}, ${end}) ns holds no channel (the data span ${h.timeNs[0]} to ${h.timeNs[h.timeNs.length - 1] + h.binWidthNs} ns)`, {
-      file: h.source,
-    });
+    throw new InputError(
+      `the crop window [${start}, ${end}) ns holds no channel (the data span ${h.timeNs[0]} to ${h.timeNs[h.timeNs.length - 1] + h.binWidthNs} ns)`,
+      {
+        file: h.source,
+      },
+    );
   }
   return {
     timeNs: h.timeNs.slice(first, last),

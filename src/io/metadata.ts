@@ -30,7 +30,14 @@ const BIN_WIDTH_STEMS = [
   'tac_resolution',
 ];
 const PERIOD_STEMS = ['period', 'rep_period', 'repetition_period', 'pulse_period', 'sync_period'];
-const RATE_STEMS = ['rep_rate', 'repetition_rate', 'pulse_rate', 'sync_rate', 'laser_rate', 'repetition_frequency'];
+const RATE_STEMS = [
+  'rep_rate',
+  'repetition_rate',
+  'pulse_rate',
+  'sync_rate',
+  'laser_rate',
+  'repetition_frequency',
+];
 
 /** Where the metadata came from, so that a bad value can be pointed at. */
 export interface MetadataContext {
@@ -107,7 +114,12 @@ function findRatesAsPeriods(meta: Record<string, string>, ctx: MetadataContext):
   return out;
 }
 
-function agreed(found: Found[], what: string, meta: Record<string, string>, ctx: MetadataContext): Found | undefined {
+function agreed(
+  found: Found[],
+  what: string,
+  meta: Record<string, string>,
+  ctx: MetadataContext,
+): Found | undefined {
   if (found.length === 0) return undefined;
   const first = found[0];
   for (const f of found.slice(1)) {
@@ -126,7 +138,10 @@ function agreed(found: Found[], what: string, meta: Record<string, string>, ctx:
  * `channel_width_ns`, `bin_width: 12.2 ps` …), or undefined when none is given. Throws InputError
  * when a value is not a positive number or two keys disagree by more than 0.1 %.
  */
-export function metadataBinWidthNs(meta: Record<string, string>, ctx: MetadataContext = {}): number | undefined {
+export function metadataBinWidthNs(
+  meta: Record<string, string>,
+  ctx: MetadataContext = {},
+): number | undefined {
   return findMetadataBinWidth(meta, ctx)?.ns;
 }
 
@@ -143,7 +158,10 @@ export function findMetadataBinWidth(
  * rate (`rep_rate_mhz`, `repetition_rate_hz`, `rep_rate: 80 MHz` …; period = 1/rate). Undefined when
  * none is given; InputError when a value is not a positive number or two keys disagree.
  */
-export function metadataPeriodNs(meta: Record<string, string>, ctx: MetadataContext = {}): number | undefined {
+export function metadataPeriodNs(
+  meta: Record<string, string>,
+  ctx: MetadataContext = {},
+): number | undefined {
   const found = [...findTimes(meta, PERIOD_STEMS, ctx), ...findRatesAsPeriods(meta, ctx)];
   return agreed(found, 'excitation period', meta, ctx)?.ns;
 }
@@ -152,7 +170,11 @@ export function metadataPeriodNs(meta: Record<string, string>, ctx: MetadataCont
  * A plain number from metadata (`excitation_nm`, `count_rate_per_s`, `concentration_m` …), or
  * undefined when the key is absent. Accepts a decimal comma. InputError when it is not a finite number.
  */
-export function metadataNumber(meta: Record<string, string>, key: string, ctx: MetadataContext = {}): number | undefined {
+export function metadataNumber(
+  meta: Record<string, string>,
+  key: string,
+  ctx: MetadataContext = {},
+): number | undefined {
   if (!(key in meta)) return undefined;
   const value = meta[key];
   const { num, unit } = splitNumberUnit(value);

@@ -42,7 +42,9 @@ type TimeSpec = { index: number; unit: TimeUnit | 'channel'; how: string } | nul
 export function parseHistogramText(text: string, options: HistogramParseOptions): Histogram {
   const { source } = options;
   if (options.binWidthNs !== undefined && !(Number.isFinite(options.binWidthNs) && options.binWidthNs > 0)) {
-    throw new InputError(`the bin width given, ${options.binWidthNs} ns, is not a positive number`, { file: source });
+    throw new InputError(`the bin width given, ${options.binWidthNs} ns, is not a positive number`, {
+      file: source,
+    });
   }
   const table = readTextTable(text, source);
   const ctx = { source, lines: table.metadataLines };
@@ -63,11 +65,16 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
   const counts = new Float64Array(table.rows.length);
   for (let i = 0; i < table.rows.length; i++) {
     const row = table.rows[i];
-    counts[i] = parseCellNumber(row.cells[countsIndex], table.decimalMark, {
-      file: source,
-      line: row.line,
-      column: countsIndex + 1,
-    }, 'a count');
+    counts[i] = parseCellNumber(
+      row.cells[countsIndex],
+      table.decimalMark,
+      {
+        file: source,
+        line: row.line,
+        column: countsIndex + 1,
+      },
+      'a count',
+    );
   }
   warnings.push(...checkCounts(counts, table.rows, countsIndex, source));
 
@@ -160,7 +167,11 @@ function chooseBinWidth(
 }
 
 /** Finds the time or channel column, or decides there is none. */
-function findTimeColumn(table: TextTable, options: HistogramParseOptions, knownBinNs: number | undefined): TimeSpec {
+function findTimeColumn(
+  table: TextTable,
+  options: HistogramParseOptions,
+  knownBinNs: number | undefined,
+): TimeSpec {
   const { source } = options;
   if (table.header) {
     const found: { index: number; unit: TimeUnit | 'channel' }[] = [];
@@ -198,22 +209,38 @@ function findTimeColumn(table: TextTable, options: HistogramParseOptions, knownB
     const raw = table.metadata.time_unit.trim().toLowerCase();
     const unit = raw === 'channel' ? 'channel' : parseTimeUnit(raw);
     if (!unit) {
-      throw new InputError(`metadata 'time_unit: ${table.metadata.time_unit}' is not a time unit (fs, ps, ns, us, ms, s or channel)`, {
-        file: source,
-        line: table.metadataLines.time_unit,
-      });
+      throw new InputError(
+        `metadata 'time_unit: ${table.metadata.time_unit}' is not a time unit (fs, ps, ns, us, ms, s or channel)`,
+        {
+          file: source,
+          line: table.metadataLines.time_unit,
+        },
+      );
     }
     return { index: 0, unit, how: `unit ${unit} from '# time_unit'` };
   }
   const binNs = options.binWidthNs ?? knownBinNs;
   if (binNs !== undefined && table.rows.length >= 2) {
-    const a = parseCellNumber(table.rows[0].cells[0], table.decimalMark, { file: source, line: table.rows[0].line, column: 1 });
-    const b = parseCellNumber(table.rows[1].cells[0], table.decimalMark, { file: source, line: table.rows[1].line, column: 1 });
+    const a = parseCellNumber(table.rows[0].cells[0], table.decimalMark, {
+      file: source,
+      line: table.rows[0].line,
+      column: 1,
+    });
+    const b = parseCellNumber(table.rows[1].cells[0], table.decimalMark, {
+      file: source,
+      line: table.rows[1].line,
+      column: 1,
+    });
     const step = b - a;
-    if (step === 1 && Number.isInteger(a)) return { index: 0, unit: 'channel', how: 'channel indices (step 1)' };
+    if (step === 1 && Number.isInteger(a))
+      return { index: 0, unit: 'channel', how: 'channel indices (step 1)' };
     for (const unit of ['ns', 'ps', 'us', 'fs'] as const) {
       if (!relativeDiffers(step * NS_PER[unit], binNs, 0.01)) {
-        return { index: 0, unit, how: `unit ${unit} inferred: its step matches the bin width ${formatNumber(binNs)} ns` };
+        return {
+          index: 0,
+          unit,
+          how: `unit ${unit} inferred: its step matches the bin width ${formatNumber(binNs)} ns`,
+        };
       }
     }
   }
@@ -223,14 +250,19 @@ function findTimeColumn(table: TextTable, options: HistogramParseOptions, knownB
   );
 }
 
-function chooseCountsColumn(table: TextTable, column: string | number | undefined, timeIndex: number): number {
+function chooseCountsColumn(
+  table: TextTable,
+  column: string | number | undefined,
+  timeIndex: number,
+): number {
   const { source, columns } = table;
   const choices = columns
     .map((name, j) => ({ name, j }))
     .filter(({ j }) => j !== timeIndex)
     .map(({ name, j }) => `'${name}' (${j + 1})`)
     .join(', ');
-  if (choices === '') throw new InputError('has no counts column', { file: source, line: table.headerLine ?? undefined });
+  if (choices === '')
+    throw new InputError('has no counts column', { file: source, line: table.headerLine ?? undefined });
   let index: number;
   if (column === undefined) {
     if (columns.length - (timeIndex >= 0 ? 1 : 0) === 1) return timeIndex === 0 ? 1 : 0;
@@ -242,13 +274,18 @@ function chooseCountsColumn(table: TextTable, column: string | number | undefine
     const want = column.trim().toLowerCase();
     index = columns.findIndex((c) => c.toLowerCase() === want);
     if (index < 0 && /^\d+$/.test(want)) index = Number(want) - 1;
-    if (index < 0) throw new InputError(`has no column '${column}'; choose one of ${choices}`, { file: source });
+    if (index < 0)
+      throw new InputError(`has no column '${column}'; choose one of ${choices}`, { file: source });
   }
   if (!Number.isInteger(index) || index < 0 || index >= columns.length) {
-    throw new InputError(`has no column ${column} (it has ${columns.length}); choose one of ${choices}`, { file: source });
+    throw new InputError(`has no column ${column} (it has ${columns.length}); choose one of ${choices}`, {
+      file: source,
+    });
   }
   if (index === timeIndex) {
-    throw new InputError(`column ${column} is the time axis, not counts; choose one of ${choices}`, { file: source });
+    throw new InputError(`column ${column} is the time axis, not counts; choose one of ${choices}`, {
+      file: source,
+    });
   }
   return index;
 }
@@ -268,12 +305,21 @@ function printedUlp(cell: string): number {
  * column written to 4 decimals cannot be more uniform than ±1e-4) up to 10 % of the step, whichever
  * is larger: a missing channel (a step twice the median) is always caught.
  */
-function readUniformAxis(table: TextTable, index: number, nsPerUnit: number): { startNs: number; stepNs: number } {
+function readUniformAxis(
+  table: TextTable,
+  index: number,
+  nsPerUnit: number,
+): { startNs: number; stepNs: number } {
   const { rows, source } = table;
   const n = rows.length;
   const t = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    t[i] = parseCellNumber(rows[i].cells[index], table.decimalMark, { file: source, line: rows[i].line, column: index + 1 }, 'a time');
+    t[i] = parseCellNumber(
+      rows[i].cells[index],
+      table.decimalMark,
+      { file: source, line: rows[i].line, column: index + 1 },
+      'a time',
+    );
     if (i > 0 && !(t[i] > t[i - 1])) {
       throw new InputError(
         `time ${rows[i].cells[index].trim()} does not increase after ${rows[i - 1].cells[index].trim()} on line ${rows[i - 1].line}; the time axis must be strictly increasing`,
@@ -305,10 +351,14 @@ function readChannelIndices(table: TextTable, index: number): number {
   for (let i = 0; i < rows.length; i++) {
     const where = { file: source, line: rows[i].line, column: index + 1 };
     const v = parseCellNumber(rows[i].cells[index], table.decimalMark, where, 'a channel index');
-    if (!Number.isInteger(v)) throw new InputError(`channel index ${rows[i].cells[index].trim()} is not a whole number`, where);
+    if (!Number.isInteger(v))
+      throw new InputError(`channel index ${rows[i].cells[index].trim()} is not a whole number`, where);
     if (i === 0) first = v;
     else if (v !== first + i) {
-      throw new InputError(`channel ${v} follows channel ${first + i - 1}; channels must be consecutive`, where);
+      throw new InputError(
+        `channel ${v} follows channel ${first + i - 1}; channels must be consecutive`,
+        where,
+      );
     }
   }
   return first;

@@ -56,7 +56,9 @@ export function resampleHistogram(h: Histogram, binWidthNs: number): Histogram {
   }
   const dropped = total - kept;
   if (dropped > 1e-9 * Math.max(total, 1)) {
-    warnings.push(`resampling dropped ${formatNumber(dropped)} counts at the end that fill no whole ${formatNumber(binWidthNs)} ns channel`);
+    warnings.push(
+      `resampling dropped ${formatNumber(dropped)} counts at the end that fill no whole ${formatNumber(binWidthNs)} ns channel`,
+    );
   }
   return {
     timeNs,
@@ -65,6 +67,14 @@ export function resampleHistogram(h: Histogram, binWidthNs: number): Histogram {
     metadata: { ...h.metadata },
     source: h.source,
     warnings,
-    ...(h.report ? { report: { ...h.report, columns: [...h.report.columns], binWidthSource: `resampled from ${formatNumber(oldW)} ns (${h.report.binWidthSource})` } } : {}),
+    ...(h.report
+      ? {
+          report: {
+            ...h.report,
+            columns: [...h.report.columns],
+            binWidthSource: `resampled from ${formatNumber(oldW)} ns (${h.report.binWidthSource})`,
+          },
+        }
+      : {}),
   };
 }

@@ -168,7 +168,10 @@ export function readTextTable(text: string, source: string): TextTable {
   let dataCells = header ? split.slice(1) : split;
   let dataLines = header ? content.slice(1) : content;
   if (dataCells.length === 0) {
-    throw new InputError('has a header line but no data rows', { file: source, line: headerLine ?? undefined });
+    throw new InputError('has a header line but no data rows', {
+      file: source,
+      line: headerLine ?? undefined,
+    });
   }
 
   // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
@@ -186,7 +189,11 @@ export function readTextTable(text: string, source: string): TextTable {
     const seen = new Map<string, number>();
     columns.forEach((name, j) => {
       if (name === '') {
-        throw new InputError(`header column ${j + 1} has no name`, { file: source, line: headerLine!, column: j + 1 });
+        throw new InputError(`header column ${j + 1} has no name`, {
+          file: source,
+          line: headerLine!,
+          column: j + 1,
+        });
       }
       const key = name.toLowerCase();
       if (seen.has(key)) {
@@ -218,7 +225,18 @@ export function readTextTable(text: string, source: string): TextTable {
   dataLines = [];
 
   const decimalMark = detectDecimalMark(rows, delimiter, source);
-  return { source, delimiter, decimalMark, header, columns, rows, metadata, metadataLines, headerLine, warnings };
+  return {
+    source,
+    delimiter,
+    decimalMark,
+    header,
+    columns,
+    rows,
+    metadata,
+    metadataLines,
+    headerLine,
+    warnings,
+  };
 }
 
 /** The separator is read off the first content line (the header, or the first data row). */
@@ -277,7 +295,8 @@ function detectDecimalMark(rows: TableRow[], delimiter: Delimiter, source: strin
     if (comma && point) break;
   }
   if (comma && point) {
-    const later = comma.line > point.line || (comma.line === point.line && comma.column > point.column) ? comma : point;
+    const later =
+      comma.line > point.line || (comma.line === point.line && comma.column > point.column) ? comma : point;
     throw new InputError(
       `'${later.text}' mixes decimal marks: line ${(later === comma ? point : comma).line} uses '${later === comma ? '.' : ','}', this cell '${later === comma ? ',' : '.'}'; use one decimal mark throughout`,
       { file: source, line: later.line, column: later.column },

@@ -8,14 +8,20 @@ export const MAX_COUNTS = 1e15;
  * Checks parsed counts: finite, ≥ 0 and ≤ 1e15, else an InputError at the cell. Returns warnings:
  * whole numbers are expected, since Poisson statistics hold for raw photon counts only.
  */
-export function checkCounts(counts: Float64Array, rows: TableRow[], column: number, source: string): string[] {
+export function checkCounts(
+  counts: Float64Array,
+  rows: TableRow[],
+  column: number,
+  source: string,
+): string[] {
   let nonInteger = 0;
   let firstNonInteger = -1;
   let total = 0;
   for (let i = 0; i < counts.length; i++) {
     const v = counts[i];
     const where = { file: source, line: rows[i].line, column: column + 1 };
-    if (v < 0) throw new InputError(`count ${rows[i].cells[column].trim()} is negative; counts must be ≥ 0`, where);
+    if (v < 0)
+      throw new InputError(`count ${rows[i].cells[column].trim()} is negative; counts must be ≥ 0`, where);
     if (v > MAX_COUNTS) {
       throw new InputError(
         `count ${rows[i].cells[column].trim()} exceeds ${MAX_COUNTS.toExponential(0)}, which no photon-counting histogram reaches; is this the right column?`,
