@@ -40,4 +40,10 @@ export interface FitOptions {
   seed?: number;
   /** Optimiser iteration limit. Default: 200. */
   maxIterations?: number;
+  /**
+   * Fill the plotting curves of the result (time, data, model, IRF, residuals, autocorrelation).
+   * Default: true. Callers that refit many times (bootstrap, profiles, component selection) may
+   * turn it off; the curves then hold empty arrays and only the fit range indices.
+   */
+  curves?: boolean;
 }
