@@ -1,0 +1,203 @@
+import { formatNumber, formatValueError } from '../../shared/format.js';
+import type { SampleResult, SeriesResult } from '../../shared/schema.js';
+import { csvQuote } from './csvCells.js';
+
+/** Full precision for machine-readable tables: the shortest text that reads back to the same double. */
+function num(x: number | undefined | null): string {
+  return x === undefined || x === null || Number.isNaN(x) ? '' : String(x);
+}
+
+function maxComponents(samples: SampleResult[]): number {
+  return samples.reduce((m, s) => Math.max(m, s.fit?.components.length ?? 0), 0);
+}
+
+function metadataColumns(samples: SampleResult[]): string[] {
+  const cols: string[] = [];
+  for (const s of samples) for (const k of Object.keys(s.metadata)) if (!cols.includes(k)) cols.push(k);
+  return cols;
+}
+
+/**
+ * results.csv: one row per sample, numbers at full precision (for spreadsheets and scripts; the
+ * rounded, human table is summary.md). Component columns cover the largest model in the batch.
+ */
+export function formatResultsCsv(samples: SampleResult[]): string {
+  const nc = maxComponents(samples);
+  const meta = metadataColumns(samples);
+  const header = ['sample', 'status', 'group', 'n_components'];
+  for (let i = 1; i <= nc; i++) header.push(`tau${i}_ns`, `tau${i}_err_ns`, `f${i}`, `f${i}_err`, `a${i}`);
+  header.push(
+    'tau_amp_avg_ns',
+    'tau_amp_avg_err_ns',
+    'tau_int_avg_ns',
+    'tau_int_avg_err_ns',
+    'shift_ns',
+    'background',
+    'chi2_red',
+    'deviance_per_dof',
+    'durbin_watson',
+    'global_chi2_red',
+    'qy',
+    'qy_err',
+    'kr_per_s',
+    'kr_err_per_s',
+    'knr_per_s',
+    'knr_err_per_s',
+    'kr_sb_per_s',
+    'kr_ratio',
+    ...meta,
+    'warnings',
+    'error',
+  );
+  const lines = [header.map(csvQuote).join(',')];
+  for (const s of samples) {
+    const f = s.fit;
+    const cells = [s.sample, s.status, s.group ?? '', num(f?.nComponents)];
+    for (let i = 0; i < nc; i++) {
+      const c = f?.components[i];
+      cells.push(
+        num(c?.tauNs),
+        num(c?.tauErrNs),
+        num(c?.intensityFraction),
+        num(c?.intensityFractionErr),
+        num(c?.amplitude),
+      );
+    }
+    cells.push(
+      num(f?.tauAmpAvgNs),
+      num(f?.tauAmpAvgErrNs),
+      num(f?.tauIntAvgNs),
+      num(f?.tauIntAvgErrNs),
+      num(f?.shiftNs),
+      num(f?.background),
+      num(f?.chi2Reduced),
+      num(f?.deviancePerDof),
+      num(f?.durbinWatson),
+      num(s.global?.chi2Reduced),
+      num(s.rates?.qy),
+      num(s.rates?.qyErr),
+      num(s.rates?.krPerS),
+      num(s.rates?.krErrPerS),
+      num(s.rates?.knrPerS),
+      num(s.rates?.knrErrPerS),
+      num(s.sb?.krSbPerS),
+      num(s.sb?.krRatio),
+      ...meta.map((k) => s.metadata[k] ?? ''),
+      allWarnings(s).join('; '),
+      s.error ?? '',
+    );
+    lines.push(cells.map(csvQuote).join(','));
+  }
+  return lines.join('\n') + '\n';
+}
+
+/** The sample's own warnings and those of its fit, rates and Strickler–Berg parts, without repeats. */
+export function allWarnings(s: SampleResult): string[] {
+  const out = [
+    ...s.warnings,
+    ...(s.fit?.warnings ?? []),
+    ...(s.rates?.warnings ?? []),
+    ...(s.sb?.warnings ?? []),
+  ];
+  return [...new Set(out)];
+}
+
+/** errors.log: one line per failed sample — sample id, manifest row, the error. Empty when none failed. */
+export function formatErrorsLog(samples: SampleResult[]): string {
+  const failed = samples.filter((s) => s.status === 'failed');
+  return failed.map((s) => `${s.sample}\trow ${s.manifestRow ?? '?'}\t${s.error ?? 'failed'}\n`).join('');
+}
+
+function cell(value: number | undefined, err: number | undefined): string {
+  if (value === undefined || !Number.isFinite(value)) return '–';
+  return formatValueError(value, err);
+}
+
+function escapeMd(text: string): string {
+  return text.replace(/\|/g, '\\|').replace(/\n/g, ' ');
+}
+
+/**
+ * summary.md: a table ready to paste into a manuscript. Each value is rounded to its uncertainty
+ * (shared/format.ts); units sit in the header. Failed samples follow in a list with their errors.
+ */
+export function formatSummaryMarkdown(
+  samples: SampleResult[],
+  series: SeriesResult[] = [],
+  title = 'lumirate batch',
+): string {
+  const nc = maxComponents(samples);
+  const ok = samples.filter((s) => s.status === 'ok');
+  const hasRates = ok.some((s) => s.rates);
+  const hasSb = ok.some((s) => s.sb);
+  const hasGlobal = ok.some((s) => s.global);
+  const head = ['Sample'];
+  for (let i = 1; i <= nc; i++) head.push(`τ${sub(i)} (ns)`, `f${sub(i)}`);
+  head.push('⟨τ⟩amp (ns)', '⟨τ⟩int (ns)', 'χ²red');
+  if (hasGlobal) head.push('global χ²red');
+  if (hasRates) head.push('Φ', 'k_r (s⁻¹)', 'k_nr (s⁻¹)');
+  if (hasSb) head.push('k_r,SB (s⁻¹)', 'k_r/k_r,SB');
+  const out: string[] = [`# ${title}`, ''];
+  out.push(`${ok.length} of ${samples.length} samples fitted.`, '');
+  out.push(`| ${head.join(' | ')} |`, `|${head.map((_, k) => (k === 0 ? ':---' : '---:')).join('|')}|`);
+  for (const s of ok) {
+    const f = s.fit!;
+    const row = [escapeMd(s.sample)];
+    for (let i = 0; i < nc; i++) {
+      const c = f.components[i];
+      row.push(cell(c?.tauNs, c?.tauErrNs), cell(c?.intensityFraction, c?.intensityFractionErr));
+    }
+    row.push(
+      cell(f.tauAmpAvgNs, f.tauAmpAvgErrNs),
+      cell(f.tauIntAvgNs, f.tauIntAvgErrNs),
+      formatNumber(f.chi2Reduced, { digits: 3 }),
+    );
+    if (hasGlobal) row.push(s.global ? formatNumber(s.global.chi2Reduced, { digits: 3 }) : '–');
+    if (hasRates)
+      row.push(
+        cell(s.rates?.qy, s.rates?.qyErr),
+        cell(s.rates?.krPerS, s.rates?.krErrPerS),
+        cell(s.rates?.knrPerS, s.rates?.knrErrPerS),
+      );
+    if (hasSb)
+      row.push(
+        cell(s.sb?.krSbPerS, undefined),
+        s.sb?.krRatio !== undefined ? formatNumber(s.sb.krRatio, { digits: 3 }) : '–',
+      );
+    out.push(`| ${row.join(' | ')} |`);
+  }
+  out.push('');
+  if (ok.some((s) => s.fit && s.fit.nComponents > 1)) {
+    out.push(
+      'fᵢ: fraction of the steady-state intensity, aᵢτᵢ/Σaⱼτⱼ. ⟨τ⟩amp = Σaᵢτᵢ/Σaᵢ; ⟨τ⟩int = Σaᵢτᵢ²/Σaᵢτᵢ.',
+      '',
+    );
+  }
+  out.push('Uncertainties are one standard error; each value is rounded to its uncertainty.', '');
+  for (const sr of series) {
+    out.push(`## Series: ${sr.model} against ${sr.xName}`, '');
+    out.push('| parameter | value |', '|:---|---:|');
+    for (const [k, v] of Object.entries(sr.parameters)) {
+      if (/Err/.test(k)) continue;
+      const errKey = k.replace(/^([a-zA-Z0-9]+?)(Kj|Ev|Per|Ns|Nm|_)/, '$1Err$2');
+      const err = errKey !== k ? sr.parameters[errKey] : undefined;
+      out.push(`| ${escapeMd(k)} | ${cell(v, err)} |`);
+    }
+    if (sr.chi2Reduced !== null)
+      out.push(`| χ²red (${sr.dof} dof) | ${formatNumber(sr.chi2Reduced, { digits: 3 })} |`);
+    out.push('');
+    for (const w of sr.warnings) out.push(`- warning: ${escapeMd(w)}`);
+    if (sr.warnings.length) out.push('');
+  }
+  const failed = samples.filter((s) => s.status === 'failed');
+  if (failed.length) {
+    out.push('## Failed samples', '');
+    for (const s of failed) out.push(`- ${escapeMd(s.sample)}: ${escapeMd(s.error ?? 'failed')}`);
+    out.push('');
+  }
+  return out.join('\n');
+}
+
+function sub(i: number): string {
+  return String.fromCharCode(0x2080 + i);
+}
