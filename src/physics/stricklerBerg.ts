@@ -194,11 +194,13 @@ export interface BandChoice {
 
 /**
  * The lowest-energy absorption band: from the red end of the data up to the first clear minimum beyond
- * the first significant maximum. Procedure, on ε smoothed by a moving average (±150 cm⁻¹ by default):
- * a maximum is significant once it exceeds max(5σ, 0.5 % of the largest ε), σ the point noise estimated
- * from second differences; a minimum is clear when ε has dropped below `valleyFraction` of the band
- * maximum and then rises again by more than max(3σ, 2 % of the band maximum). Without a clear minimum the
- * first shallow minimum is taken (with a warning); without any minimum, the data's blue end.
+ * the first significant maximum. Procedure, on ε smoothed by a moving average (±150 cm⁻¹ by default),
+ * scanning from low to high wavenumber: the band maximum is significant once it exceeds max(5σ, 0.5 % of
+ * the largest ε), σ the point noise estimated from second differences. A minimum is a point after which
+ * ε rises again by more than max(3σ, 2 % of the band maximum); it is clear when it lies below
+ * `valleyFraction` of the highest ε seen so far (vibronic dips within one band are usually shallower).
+ * If ε falls below that level and never rises again, the band ends at its lowest point. Without a clear
+ * minimum the first shallow one is taken, with a warning; without any, the data's blue end.
  */
 export function chooseAbsorptionBand(abs: WavenumberSeries, options: AutoBandOptions = {}): BandChoice {
   const { nuCm, y } = abs;
@@ -212,64 +214,81 @@ export function chooseAbsorptionBand(abs: WavenumberSeries, options: AutoBandOpt
   const significant = Math.max(5 * sigma, 0.005 * globalMax);
   const warnings: string[] = [];
   const fmt = (v: number) => `${Math.round(v)} cm⁻¹ (${(1e7 / v).toFixed(1)} nm)`;
+  const lowCm = nuCm[0];
 
-  let peakIdx = -1;
   let runMax = -Infinity;
-  let clearStart = -1;
-  let firstShallow = -1;
+  let peakIdx = -1;
+  let cand = -1; // lowest point since the last new maximum
+  let shallow = -1; // first minimum that was not clear
+  let maxAtShallow = 0;
+  let clear = -1;
   for (let i = 0; i < n; i++) {
     if (sm[i] > runMax) {
       runMax = sm[i];
       peakIdx = i;
+      cand = i;
+      continue;
     }
     if (runMax < significant) continue;
+    if (sm[i] < sm[cand]) cand = i;
     const rise = Math.max(3 * sigma, 0.02 * runMax);
-    if (clearStart < 0 && sm[i] <= valleyFraction * runMax) clearStart = i;
-    if (clearStart >= 0) break;
-    // Remember the first shallow minimum past the peak in case no clear one follows.
-    if (firstShallow < 0 && i > peakIdx) {
-      let j = i;
-      let minJ = i;
-      while (j < n && sm[j] < sm[minJ] + rise) {
-        if (sm[j] < sm[minJ]) minJ = j;
-        if (sm[j] > runMax) break;
-        j++;
+    if (sm[i] >= sm[cand] + rise && sm[cand] < runMax - rise) {
+      if (sm[cand] <= valleyFraction * runMax) {
+        clear = cand;
+        break;
       }
-      if (j < n && sm[j] >= sm[minJ] + rise && sm[minJ] < runMax - rise) firstShallow = minJ;
+      if (shallow < 0) {
+        shallow = cand;
+        maxAtShallow = runMax;
+      }
+      cand = i;
     }
   }
-  const lowCm = nuCm[0];
   if (peakIdx < 0 || runMax < significant) {
     throw new InputError(
       'the absorption spectrum has no band above its noise level; give the band limits explicitly.',
     );
   }
   const peakCm = nuCm[peakIdx];
-  if (clearStart >= 0) {
-    const rise = Math.max(3 * sigma, 0.02 * runMax);
-    let minJ = clearStart;
-    let j = clearStart;
-    while (j < n && sm[j] < sm[minJ] + rise) {
-      if (sm[j] < sm[minJ]) minJ = j;
-      j++;
+  const passedShallow = (end: number) => {
+    // A shallow dip followed by a stronger band may separate two transitions rather than vibronic levels.
+    if (shallow >= 0 && shallow < end && runMax > maxAtShallow * 1.02) {
+      warnings.push(
+        `The band passes a shallow minimum at ${fmt(nuCm[shallow])} followed by stronger absorption; if it separates ` +
+          'two transitions, give the band limits explicitly.',
+      );
     }
-    const rose = j < n;
-    const highCm = nuCm[minJ];
-    const description = rose
-      ? `automatic: lowest-energy band from the red end of the data to the first clear minimum at ${fmt(highCm)} ` +
-        `(band maximum at ${fmt(peakCm)}; smoothed ±${halfWidth} cm⁻¹)`
-      : `automatic: lowest-energy band from the red end of the data to ${fmt(highCm)}, where ε reaches its lowest value ` +
-        `beyond the band maximum at ${fmt(peakCm)} without rising again`;
-    return { bandCm: [lowCm, highCm], description, warnings, peakCm };
+  };
+  if (clear >= 0) {
+    passedShallow(clear);
+    return {
+      bandCm: [lowCm, nuCm[clear]],
+      description:
+        `automatic: lowest-energy band from the red end of the data to the first clear minimum at ${fmt(nuCm[clear])} ` +
+        `(band maximum at ${fmt(peakCm)}; smoothed ±${halfWidth} cm⁻¹)`,
+      warnings,
+      peakCm,
+    };
   }
-  if (firstShallow >= 0) {
+  if (cand >= 0 && sm[cand] <= valleyFraction * runMax) {
+    passedShallow(cand);
+    return {
+      bandCm: [lowCm, nuCm[cand]],
+      description:
+        `automatic: lowest-energy band from the red end of the data to ${fmt(nuCm[cand])}, where ε reaches its lowest ` +
+        `value beyond the band maximum at ${fmt(peakCm)} without rising again`,
+      warnings,
+      peakCm,
+    };
+  }
+  if (shallow >= 0) {
     warnings.push(
       `No clear minimum separates the lowest-energy band from higher transitions; the first shallow minimum at ` +
-        `${fmt(nuCm[firstShallow])} was used. Check the band limits and give them explicitly if needed.`,
+        `${fmt(nuCm[shallow])} was used. Check the band limits and give them explicitly if needed.`,
     );
     return {
-      bandCm: [lowCm, nuCm[firstShallow]],
-      description: `automatic: lowest-energy band up to the first (shallow) minimum at ${fmt(nuCm[firstShallow])}`,
+      bandCm: [lowCm, nuCm[shallow]],
+      description: `automatic: lowest-energy band up to the first (shallow) minimum at ${fmt(nuCm[shallow])}`,
       warnings,
       peakCm,
     };
