@@ -1,0 +1,59 @@
+/**
+ * The report the browser test opens. When the demo scenario exists (sample-data/manifest.csv), it is the
+ * real thing: the batch runs on it and its report.html is used (or, if the batch wrote none, the one
+ * `lumirate view` writes from its results.json), and a batch failure fails the test. Before the demo
+ * exists, a report built from the invented fixture stands in.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import type { ReportData, SampleResult } from '../../shared/schema.js';
+import { writeReport } from '../../cli/report.js';
+import { fixtureReport } from './fixtures.js';
+
+export const ROOT = join(import.meta.dirname, '..', '..');
+export const OUTPUT_DIR = join(ROOT, 'test-output', 'viewer');
+
+export interface OpenedReport {
+  path: string;
+  samples: SampleResult[];
+  source: 'demo' | 'fixture';
+}
+
+function runCli(args: string[]): { status: number | null; stderr: string; stdout: string } {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(ROOT, 'cli', 'main.ts'), ...args], {
+    cwd: ROOT,
+    encoding: 'utf8',
+    timeout: 600_000,
+  });
+  return { status: r.status, stderr: r.stderr, stdout: r.stdout };
+}
+
+export function demoReport(): OpenedReport {
+  mkdirSync(OUTPUT_DIR, { recursive: true });
+  const manifest = join(ROOT, 'sample-data', 'manifest.csv');
+  if (existsSync(manifest)) {
+    const out = join(OUTPUT_DIR, 'demo');
+    rmSync(out, { recursive: true, force: true });
+    const batch = runCli(['batch', manifest, '--out', out, '--quiet']);
+    const results = join(out, 'results.json');
+    // Exit 4 means "finished, some samples failed": the demo may include a deliberately bad sample.
+    if ((batch.status !== 0 && batch.status !== 4) || !existsSync(results))
+      throw new Error(`the batch on the demo failed (exit ${batch.status}): ${batch.stderr}`);
+    let report = join(out, 'report.html');
+    if (!existsSync(report)) {
+      report = join(OUTPUT_DIR, 'demo-report.html');
+      const view = runCli(['view', results, '--out', report, '--quiet']);
+      if (view.status !== 0) throw new Error(`lumirate view failed (exit ${view.status}): ${view.stderr}`);
+    }
+    return {
+      path: report,
+      samples: JSON.parse(readFileSync(results, 'utf8')) as SampleResult[],
+      source: 'demo',
+    };
+  }
+  const data: ReportData = fixtureReport({ samples: 12, channels: 4096 });
+  const path = join(OUTPUT_DIR, 'fixture-report.html');
+  writeReport(data, path);
+  return { path, samples: data.samples, source: 'fixture' };
+}

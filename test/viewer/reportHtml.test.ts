@@ -1,0 +1,153 @@
+import { describe, expect, it } from 'vitest';
+import {
+  assembleReportHtml,
+  CURVES_ID_PREFIX,
+  escapeHtml,
+  jsonForScript,
+  packCurves,
+  REPORT_CSP,
+  REPORT_DATA_ID,
+  unpackCurves,
+  type ReportAssets,
+} from '../../shared/reportHtml.js';
+import type { FitCurves, ReportData } from '../../shared/schema.js';
+import { fixtureReport, fixtureSample } from './fixtures.js';
+
+const assets: ReportAssets = {
+  appJs: 'window.appLoaded = true;',
+  appCss: 'body { color: black; }',
+  uplotJs: 'var uPlot = function () {};',
+  uplotCss: '.uplot { display: block; }',
+};
+
+const HOSTILE = [
+  '<img src=x onerror="window.__pwned=1">',
+  '</script><script>window.__pwned=2</script>',
+  'a\u2028b\u2029c',
+];
+
+/** The text of every `<script type="application/json">` block, in order, found the way an HTML parser ends them. */
+function jsonBlocks(html: string): { id: string; text: string }[] {
+  const out: { id: string; text: string }[] = [];
+  const re = /<script type="application\/json" id="([^"]+)">/g;
+  for (const m of html.matchAll(re)) {
+    const start = m.index! + m[0].length;
+    // An HTML parser ends a script element at the first "</script" whatever the case.
+    const end = html.toLowerCase().indexOf('</script', start);
+    out.push({ id: m[1], text: html.slice(start, end) });
+  }
+  return out;
+}
+
+describe('jsonForScript', () => {
+  it('leaves no "<" and no raw line or paragraph separator, and parses back to the same value', () => {
+    const value = { names: HOSTILE, nested: { s: '<!-- <script>' } };
+    const text = jsonForScript(value);
+    expect(text).not.toMatch(/[<\u2028\u2029]/);
+    expect(JSON.parse(text)).toEqual(value);
+  });
+});
+
+describe('escapeHtml', () => {
+  it('escapes the five characters that matter in content and attributes', () => {
+    expect(escapeHtml(`<a href="x" title='y'>&</a>`)).toBe(
+      '&#60;a href=&#34;x&#34; title=&#39;y&#39;&#62;&#38;&#60;/a&#62;',
+    );
+  });
+});
+
+describe('assembleReportHtml', () => {
+  const data = fixtureReport({ samples: 3, channels: 256, extraNames: HOSTILE });
+  data.title = '</title><script>alert(1)</script>';
+  const html = assembleReportHtml(assets, data);
+
+  it('carries a restrictive Content-Security-Policy that allows nothing from the network', () => {
+    expect(html).toContain(`<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">`);
+    expect(REPORT_CSP).toContain("default-src 'none'");
+    expect(REPORT_CSP).not.toMatch(/https?:/);
+  });
+
+  it('no name in the data can end its script block: every block parses and gives the names back', () => {
+    const blocks = jsonBlocks(html);
+    const summary = blocks.find((b) => b.id === REPORT_DATA_ID);
+    expect(summary).toBeDefined();
+    const parsed = JSON.parse(summary!.text) as ReportData;
+    expect(parsed.samples.map((s) => s.sample)).toEqual(data.samples.map((s) => s.sample));
+    for (const b of blocks) expect(() => JSON.parse(b.text)).not.toThrow();
+    // Script elements: the data blocks, uPlot and the page, and no more (the hostile names added none).
+    const curveBlocks = data.samples.filter((s) => s.fit).length;
+    expect(html.match(/<script\b/gi)?.length).toBe(1 + curveBlocks + 2);
+  });
+
+  it('escapes the title in the head', () => {
+    expect(html).toContain('<title>&#60;/title&#62;&#60;script&#62;alert(1)&#60;/script&#62;</title>');
+  });
+
+  it('keeps the curves out of the summary and puts each sample’s curves in its own block', () => {
+    const summary = JSON.parse(jsonBlocks(html).find((b) => b.id === REPORT_DATA_ID)!.text) as ReportData;
+    expect(summary.samples.every((s) => s.fit === undefined || s.fit.curves === undefined)).toBe(true);
+    const okIndex = data.samples.findIndex((s) => s.status === 'ok');
+    expect(jsonBlocks(html).some((b) => b.id === `${CURVES_ID_PREFIX}${okIndex}`)).toBe(true);
+    const failedIndex = data.samples.findIndex((s) => s.status === 'failed');
+    expect(jsonBlocks(html).some((b) => b.id === `${CURVES_ID_PREFIX}${failedIndex}`)).toBe(false);
+  });
+
+  it('does not change the data it was given', () => {
+    expect(data.samples[0].fit?.curves.timeNs.length).toBe(256);
+  });
+
+  it('breaks "</script" and "<!--" inside inline code so that the code block cannot end early', () => {
+    const tricky = assembleReportHtml(
+      { ...assets, appJs: 'const a = "</script><b>"; const b = "<!--";' },
+      fixtureReport({ samples: 1, channels: 64, failed: false, series: false }),
+    );
+    const code = tricky.slice(
+      tricky.lastIndexOf('<script>') + '<script>'.length,
+      tricky.lastIndexOf('</script>'),
+    );
+    expect(code).toBe('const a = "<\\/script><b>"; const b = "<\\x21--";');
+    // The rewritten code means the same to a JavaScript engine.
+    expect(new Function(`${code}; return [a, b];`)()).toEqual(['</script><b>', '<!--']);
+  });
+
+  it('refuses a stylesheet that would end its style element', () => {
+    expect(() =>
+      assembleReportHtml({ ...assets, appCss: 'a{}</style><script>' }, fixtureReport({ samples: 1 })),
+    ).toThrow(/the page stylesheet contains "<\/style"/);
+  });
+});
+
+describe('packCurves / unpackCurves', () => {
+  const curves = fixtureSample({ name: 'x', tausNs: [3], fractions: [1], channels: 300 }).fit!.curves;
+
+  it('stores a uniform time axis as start and step and restores it to within 1e-9 ns', () => {
+    const packed = packCurves(curves);
+    expect(Array.isArray(packed.timeNs)).toBe(false);
+    const back = unpackCurves(packed);
+    expect(back.timeNs.length).toBe(curves.timeNs.length);
+    back.timeNs.forEach((t, i) => expect(Math.abs(t - curves.timeNs[i])).toBeLessThan(1e-9));
+  });
+
+  it('keeps a non-uniform time axis as a list', () => {
+    const odd: FitCurves = { ...curves, timeNs: curves.timeNs.map((t, i) => t + (i === 7 ? 0.001 : 0)) };
+    expect(Array.isArray(packCurves(odd).timeNs)).toBe(true);
+    expect(unpackCurves(packCurves(odd)).timeNs[7]).toBeCloseTo(odd.timeNs[7], 12);
+  });
+
+  it('rounds counts to 0.01 and residuals to 0.001, keeping masked channels as null', () => {
+    const c: FitCurves = {
+      ...curves,
+      timeNs: [0, 0.1, 0.2],
+      data: [5, 6, 7],
+      model: [null, 1234.56789, 0.004],
+      irf: [0, 1.005, 2.3333],
+      weightedResiduals: [null, -1.23456, Number.NaN],
+      autocorrelation: [1, 0.123456],
+    };
+    const p = packCurves(c);
+    expect(p.model).toEqual([null, 1234.57, 0]);
+    expect(p.weightedResiduals).toEqual([null, -1.235, null]);
+    expect(p.autocorrelation).toEqual([1, 0.1235]);
+    expect(p.data).toEqual([5, 6, 7]);
+  });
+});
