@@ -1,0 +1,84 @@
+import {
+  appendFileSync,
+  existsSync,
+  mkdtempSync,
+  readdirSync,
+  readFileSync,
+  rmSync,
+  writeFileSync,
+} from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterEach, describe, expect, it } from 'vitest';
+import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
+import { Journal, readJournal } from '../../cli/batch/journal.js';
+import { removeStaleTemporaries } from '../../cli/batch/writeOutputs.js';
+
+const dirs: string[] = [];
+function tempDir(): string {
+  const d = mkdtempSync(join(tmpdir(), 'lumirate-journal-'));
+  dirs.push(d);
+  return d;
+}
+afterEach(() => {
+  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
+});
+
+describe('journal', () => {
+  it('reads back what was appended, by position and as a whole', () => {
+    const path = join(tempDir(), 'j.ndjson');
+    const j = new Journal(path, { append: false });
+    const a = j.append(JSON.stringify({ sample: 'a', x: 'é' }));
+    const b = j.append(JSON.stringify({ sample: 'b' }));
+    expect(JSON.parse(j.read(b))).toEqual({ sample: 'b' });
+    expect(JSON.parse(j.read(a))).toEqual({ sample: 'a', x: 'é' });
+    j.close();
+    expect(readJournal(path).map((l) => l.value)).toEqual([{ sample: 'a', x: 'é' }, { sample: 'b' }]);
+  });
+
+  it('ignores a torn last line, as a kill during a write leaves it', () => {
+    const path = join(tempDir(), 'j.ndjson');
+    writeFileSync(path, '{"sample":"a"}\n{"sample":"b"}\n{"sample":"c","fit":{"tau');
+    expect(readJournal(path).map((l) => (l.value as { sample: string }).sample)).toEqual(['a', 'b']);
+  });
+
+  it('skips a torn line that later appends followed', () => {
+    const path = join(tempDir(), 'j.ndjson');
+    writeFileSync(path, '{"sample":"a"}\n{"sam');
+    appendFileSync(path, '{"sample":"b"}\n');
+    // The torn fragment and the next record share a line that does not parse: both are dropped, so b reruns.
+    expect(readJournal(path).map((l) => (l.value as { sample: string }).sample)).toEqual(['a']);
+  });
+});
+
+describe('writeFileAtomic', () => {
+  it('writes the whole content and leaves no temporary file', () => {
+    const dir = tempDir();
+    const path = join(dir, 'out.json');
+    writeFileAtomic(path, ['[', '1,2', ']']);
+    expect(readFileSync(path, 'utf8')).toBe('[1,2]');
+    expect(readdirSync(dir)).toEqual(['out.json']);
+  });
+
+  it('keeps the old file intact when writing the new one fails', () => {
+    const dir = tempDir();
+    const path = join(dir, 'out.json');
+    writeFileSync(path, 'old');
+    function* failing(): Generator<string> {
+      yield 'new, partial';
+      throw new Error('disk full');
+    }
+    expect(() => writeFileAtomic(path, failing())).toThrow('disk full');
+    expect(readFileSync(path, 'utf8')).toBe('old');
+    expect(readdirSync(dir)).toEqual(['out.json']);
+  });
+
+  it('a later run removes temporaries left by a killed one', () => {
+    const dir = tempDir();
+    writeFileSync(join(dir, 'results.json.tmp-999999'), '[{"half');
+    writeFileSync(join(dir, 'results.json'), '[]');
+    removeStaleTemporaries(dir);
+    expect(readdirSync(dir)).toEqual(['results.json']);
+    expect(existsSync(join(dir, 'results.json'))).toBe(true);
+  });
+});

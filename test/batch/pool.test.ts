@@ -1,0 +1,42 @@
+import { describe, expect, it } from 'vitest';
+import { WorkerPool } from '../../cli/batch/pool.js';
+
+const squareWorker = new URL('./fixtures/squareWorker.ts', import.meta.url);
+
+describe('WorkerPool', () => {
+  it('runs every task once on several threads and returns every reply', async () => {
+    const pool = new WorkerPool<{ id: number; n: number }, { id: number; value: number; thread: number }>(
+      squareWorker,
+      2,
+    );
+    const tasks = Array.from({ length: 40 }, (_, i) => ({ id: i, n: i }));
+    const replies: { id: number; value: number; thread: number }[] = [];
+    await pool.run(tasks, (r) => replies.push(r));
+    await pool.close();
+    expect(replies.map((r) => r.id).sort((a, b) => a - b)).toEqual(tasks.map((t) => t.id));
+    for (const r of replies) expect(r.value).toBe(r.id * r.id);
+    expect(new Set(replies.map((r) => r.thread)).size).toBe(2);
+  });
+
+  it('fails the run when a worker thread dies', async () => {
+    const pool = new WorkerPool<{ id: number; n: number }, { id: number }>(squareWorker, 1);
+    await expect(pool.run([{ id: 0, n: -1 }], () => {})).rejects.toThrow(
+      'a worker thread stopped with code 7',
+    );
+    await pool.close();
+  });
+
+  it('stop() ends the run early, keeping the replies that arrived', async () => {
+    const pool = new WorkerPool<{ id: number; n: number }, { id: number }>(squareWorker, 1, undefined, 1);
+    const seen: number[] = [];
+    await pool.run(
+      Array.from({ length: 100 }, (_, i) => ({ id: i, n: i })),
+      (r) => {
+        seen.push(r.id);
+        if (seen.length === 3) pool.stop();
+      },
+    );
+    await pool.close();
+    expect(seen).toEqual([0, 1, 2]);
+  });
+});
