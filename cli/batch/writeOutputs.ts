@@ -1,0 +1,68 @@
+import { readdirSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shared/schema.js';
+import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
+import { byManifestOrder } from '../../src/batch/merge.js';
+import { writeFileAtomic } from './atomicWrite.js';
+
+/** The files a batch leaves in its output directory. */
+export const OUTPUT_FILES = [
+  'results.json',
+  'results.csv',
+  'summary.md',
+  'errors.log',
+  'series.json',
+  'report.html',
+] as const;
+
+/** One finished sample: its brief result (no curves) and a way to get its full JSON text. */
+export interface OutputEntry {
+  brief: SampleResult;
+  json: () => string;
+}
+
+/** Removes temporary files left by a killed run (their writer is gone; the real files are intact). */
+export function removeStaleTemporaries(dir: string): void {
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return;
+  }
+  for (const name of names) {
+    if (/\.tmp-\d+$/.test(name) && !name.endsWith(`.tmp-${process.pid}`))
+      rmSync(join(dir, name), { force: true });
+  }
+}
+
+/**
+ * Writes results.json (streamed one sample at a time, so a large batch never sits in memory as one
+ * string), results.csv, summary.md, errors.log and, when there are series, series.json; each one
+ * atomically. Samples appear in manifest order.
+ */
+export function writeBatchOutputs(
+  dir: string,
+  entries: OutputEntry[],
+  series: SeriesResult[],
+  options: { title: string; writeReport?: (samples: () => SampleResult[], series: SeriesResult[]) => void },
+): void {
+  const ordered = entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief));
+  const briefs = ordered.map((e) => e.brief);
+  writeFileAtomic(join(dir, 'results.json'), resultsJsonChunks(ordered));
+  writeFileAtomic(join(dir, 'results.csv'), formatResultsCsv(briefs));
+  writeFileAtomic(join(dir, 'summary.md'), formatSummaryMarkdown(briefs, series, options.title));
+  writeFileAtomic(join(dir, 'errors.log'), formatErrorsLog(briefs));
+  if (series.length)
+    writeFileAtomic(
+      join(dir, 'series.json'),
+      JSON.stringify({ schemaVersion: SCHEMA_VERSION, series }, null, 2) + '\n',
+    );
+  else rmSync(join(dir, 'series.json'), { force: true });
+  options.writeReport?.(() => ordered.map((e) => JSON.parse(e.json()) as SampleResult), series);
+}
+
+function* resultsJsonChunks(entries: OutputEntry[]): Generator<string> {
+  yield '[\n';
+  for (let k = 0; k < entries.length; k++) yield (k ? ',\n' : '') + entries[k].json();
+  yield '\n]\n';
+}
