@@ -34,9 +34,16 @@ const PARAMS_PER_COMPONENT = 2;
 
 const ORDINALS = ['first', 'second', 'third', 'fourth', 'fifth', 'sixth'];
 
-/** The figure of merit whose difference is the likelihood-ratio statistic: deviance, or χ² for least squares. */
+/**
+ * The minimised figure of merit, whose difference between nested fits is the likelihood-ratio statistic:
+ * the Poisson deviance, or for least squares the weighted χ² the fit minimised. The reported `chi2` is
+ * always Pearson's, so for least squares the minimised value is taken back out of AIC = merit + 2k,
+ * with k = fitted channels − dof.
+ */
 export function meritOf(fit: FitResult): number {
-  return fit.statistic === 'poisson' ? fit.deviance : fit.chi2;
+  if (fit.statistic === 'poisson') return fit.deviance;
+  const nPoints = fit.curves.fitEndIndex - fit.curves.fitStartIndex + 1;
+  return fit.aic - 2 * (nPoints - fit.dof);
 }
 
 export function meritName(fit: FitResult): string {
