@@ -27,18 +27,18 @@ export function resampleHistogram(h: Histogram, binWidthNs: number): Histogram {
     );
   }
   const counts = new Float64Array(m);
+  // Work in units of old channels, so that whole-number ratios add whole counts exactly.
+  const rawRatio = binWidthNs / oldW;
+  const r = Math.abs(rawRatio - Math.round(rawRatio)) < 1e-9 ? Math.round(rawRatio) : rawRatio;
   let kept = 0;
   for (let i = 0; i < n; i++) {
-    const a = i * oldW;
-    const b = a + oldW;
     const c = h.counts[i];
     if (c === 0) continue;
-    for (let j = Math.floor(a / binWidthNs); j < m && j * binWidthNs < b; j++) {
-      const lo = Math.max(a, j * binWidthNs);
-      const hi = Math.min(b, (j + 1) * binWidthNs);
-      if (hi <= lo) continue;
-      const share = (c * (hi - lo)) / oldW;
-      counts[j] += share;
+    for (let k = Math.floor(i / r); k < m && k * r < i + 1; k++) {
+      const overlap = Math.min(i + 1, (k + 1) * r) - Math.max(i, k * r);
+      if (overlap <= 0) continue;
+      const share = c * overlap;
+      counts[k] += share;
       kept += share;
     }
   }
@@ -47,11 +47,10 @@ export function resampleHistogram(h: Histogram, binWidthNs: number): Histogram {
   const timeNs = new Float64Array(m);
   for (let j = 0; j < m; j++) timeNs[j] = t0 + j * binWidthNs;
   const warnings = [...h.warnings];
-  const ratio = binWidthNs / oldW;
-  const integral = Math.abs(ratio - Math.round(ratio)) < 1e-9 && Math.round(ratio) >= 1;
+  const integral = Math.abs(r - Math.round(r)) < 1e-9 && Math.round(r) >= 1;
   if (!integral) {
     warnings.push(
-      `resampled from ${formatNumber(oldW)} to ${formatNumber(binWidthNs)} ns channels (factor ${formatNumber(ratio)}, not a whole number): counts were shared between channels and are no longer raw Poisson counts`,
+      `resampled from ${formatNumber(oldW)} to ${formatNumber(binWidthNs)} ns channels (factor ${formatNumber(r)}, not a whole number): counts were shared between channels and are no longer raw Poisson counts`,
     );
   }
   const dropped = total - kept;

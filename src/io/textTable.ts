@@ -176,6 +176,8 @@ export function readTextTable(text: string, source: string): TextTable {
 
   // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
   // the word before it when that makes the header as wide as the data.
+  // A trailing separator after the header (spreadsheet exports) names no column.
+  if (header && header.length > 1 && header[header.length - 1] === '') header.pop();
   let columns = header ?? split[0].map((_, j) => `col${j + 1}`);
   if (header && delimiter === 'whitespace' && header.length !== dataCells[0].length) {
     const joined = content[0].text
@@ -268,7 +270,9 @@ function splitLines(content: ContentLine[], delimiter: Delimiter, source: string
   });
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
   if (quoteError || parsed.data.length !== content.length) {
-    const row = quoteError?.row ?? 0;
+    // Rows agree with lines up to the first field that swallowed a line break.
+    const spanning = parsed.data.findIndex((cells) => cells.some((c) => c.includes('\n')));
+    const row = spanning >= 0 ? spanning : (quoteError?.row ?? 0);
     throw new InputError('has an unterminated quoted field; quotes must open and close on the same line', {
       file: source,
       line: content[Math.min(row, content.length - 1)].line,
