@@ -40,7 +40,7 @@ export function fitModel(
 ): FitResult {
   const setup = resolveFitSetup(decay, irf, options);
   const fit = runFit(setup);
-  return buildResult(setup, fit, decay);
+  return buildResult(setup, fit, decay, options.curves ?? true);
 }
 
 interface FitRun {
@@ -196,6 +196,9 @@ function runFit(setup: FitSetup): FitRun {
     },
   };
 
+  // The best start is fitted first; the next ones only when that fit looks doubtful (not converged,
+  // a lifetime or amplitude on a bound, or χ² well above its expected spread), and the lowest
+  // objective wins. Most decays need one start, difficult ones get several.
   let best: { lm: LmResult; all: Float64Array } | null = null;
   for (const start of starts) {
     all.set(start.params);
@@ -211,6 +214,7 @@ function runFit(setup: FitSetup): FitRun {
       for (let f = 0; f < F; f++) final[free[f]] = lm.params[f];
       best = { lm, all: final };
     }
+    if (!looksDoubtful(best.lm, free, L, nFit)) break;
   }
   const chosen = best!;
   if (chosen.lm.stop === 'nonFinite' || !Number.isFinite(chosen.lm.objective))
@@ -220,13 +224,24 @@ function runFit(setup: FitSetup): FitRun {
   return { model, all: chosen.all, free, lm: chosen.lm, modelFull, lower, upper };
 }
 
+/** True when a fit deserves another start: not converged, a lifetime or amplitude on a bound, or a poor objective. */
+function looksDoubtful(lm: LmResult, free: number[], L: DecayModel['layout'], nFit: number): boolean {
+  if (lm.stop !== 'converged') return true;
+  for (let f = 0; f < free.length; f++) {
+    const k = free[f];
+    if (lm.atBound[f] && (L.lnTau.includes(k) || L.amplitude.includes(k))) return true;
+  }
+  const dof = nFit - free.length;
+  return lm.objective > dof + 5 * Math.sqrt(2 * dof);
+}
+
 /** Fixed-width number for messages. */
 const fmt = (v: number) =>
   Math.abs(v) >= 1e4 || (Math.abs(v) < 1e-3 && v !== 0)
     ? v.toExponential(3)
     : Number(v.toPrecision(4)).toString();
 
-function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult {
+function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves: boolean): FitResult {
   const { model, lm, free, modelFull } = run;
   const L = model.layout;
   const P = L.count;
@@ -366,9 +381,12 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult 
     const side = all[k] <= lowerP[k] ? 'lower' : 'upper';
     warnings.push(`${names[k]} at ${side} bound ${fmt(shown)}${unit}`);
   }
-  const peakCounts = Math.max(...data);
+  let peakCounts = 0;
   let totalCounts = 0;
-  for (let i = 0; i < nFit; i++) totalCounts += data[i];
+  for (let i = 0; i < nFit; i++) {
+    totalCounts += data[i];
+    if (data[i] > peakCounts) peakCounts = data[i];
+  }
   if (nc >= 2 && peakCounts < 1e4)
     warnings.push(
       `peak counts ${fmt(peakCounts)} are below the ≈10 000 usually needed to separate ${nc} lifetimes reliably`,
@@ -415,19 +433,18 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult 
   if (lm.stop !== 'converged')
     warnings.push(`the optimiser stopped without converging (${lm.stop}) after ${lm.iterations} iterations`);
 
-  // Curves on the full channel axis.
-  const irfCurve = model.irfCurve(all);
-  let irfMax = 0;
-  for (let i = 0; i < irfCurve.length; i++) irfMax = Math.max(irfMax, irfCurve[i]);
-  let dataMax = 0;
-  for (let i = 0; i < counts.length; i++) dataMax = Math.max(dataMax, counts[i]);
-  const n = setup.channels;
-  const modelCurve: (number | null)[] = new Array(n).fill(null);
-  const residCurve: (number | null)[] = new Array(n).fill(null);
-  for (let i = i0; i < i1; i++) {
-    modelCurve[i] = modelFull[i];
-    residCurve[i] = resid[i - i0];
-  }
+  const curves = withCurves
+    ? plotCurves(setup, model.irfCurve(all), modelFull, resid, decay)
+    : {
+        timeNs: [],
+        data: [],
+        model: [],
+        irf: [],
+        weightedResiduals: [],
+        autocorrelation: [],
+        fitStartIndex: i0,
+        fitEndIndex: i1 - 1,
+      };
   const fixedOut: Record<string, number> = {};
   for (const [k, v] of Object.entries(setup.fix)) fixedOut[k] = v;
 
@@ -467,16 +484,7 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult 
     peakCounts,
     totalCounts,
     fixed: fixedOut,
-    curves: {
-      timeNs: Array.from(decay.timeNs),
-      data: Array.from(counts),
-      model: modelCurve,
-      irf: irfMax > 0 ? Array.from(irfCurve, (v) => (v * dataMax) / irfMax) : [],
-      weightedResiduals: residCurve,
-      autocorrelation: Array.from(residualAutocorrelation(resid)),
-      fitStartIndex: i0,
-      fitEndIndex: i1 - 1,
-    },
+    curves,
   };
   if (setup.mode === 'gaussian') {
     result.irfFwhmNs = all[L.irfSigma] * FWHM_PER_SIGMA;
@@ -493,4 +501,50 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram): FitResult 
     matrix: freeSorted.map((a) => freeSorted.map((b) => covP[a * P + b] * toReported(a) * toReported(b))),
   };
   return result;
+}
+
+/** Longest autocorrelation lag reported, channels: enough to show correlated structure, cheap to compute. */
+const MAX_AUTOCORRELATION_LAG = 512;
+
+/** Curves for plotting on the full channel axis; model and residuals are null outside the fit range. */
+function plotCurves(
+  setup: FitSetup,
+  irfCurve: Float64Array,
+  modelFull: Float64Array,
+  resid: Float64Array,
+  decay: Histogram,
+): FitResult['curves'] {
+  const n = setup.channels;
+  const i0 = setup.fitStart;
+  const i1 = setup.fitEnd;
+  const counts = setup.counts;
+  let irfMax = 0;
+  for (let i = 0; i < n; i++) if (irfCurve[i] > irfMax) irfMax = irfCurve[i];
+  let dataMax = 0;
+  for (let i = 0; i < n; i++) if (counts[i] > dataMax) dataMax = counts[i];
+  const timeNs = new Array<number>(n);
+  const data = new Array<number>(n);
+  const model = new Array<number | null>(n);
+  const residuals = new Array<number | null>(n);
+  const irf = irfMax > 0 ? new Array<number>(n) : [];
+  const irfScale = irfMax > 0 ? dataMax / irfMax : 0;
+  for (let i = 0; i < n; i++) {
+    timeNs[i] = decay.timeNs[i];
+    data[i] = counts[i];
+    const inside = i >= i0 && i < i1;
+    model[i] = inside ? modelFull[i] : null;
+    residuals[i] = inside ? resid[i - i0] : null;
+    if (irfMax > 0) irf[i] = irfCurve[i] * irfScale;
+  }
+  const lag = Math.min(Math.floor(resid.length / 2), MAX_AUTOCORRELATION_LAG);
+  return {
+    timeNs,
+    data,
+    model,
+    irf,
+    weightedResiduals: residuals,
+    autocorrelation: Array.from(residualAutocorrelation(resid, lag)),
+    fitStartIndex: i0,
+    fitEndIndex: i1 - 1,
+  };
 }

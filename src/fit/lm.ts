@@ -137,20 +137,26 @@ function gradientAndHessian(
       hW[i] = 2 / mf;
     }
   }
-  for (let a = 0; a < P; a++) {
-    const ja = a * N;
-    let s = 0;
-    for (let i = 0; i < N; i++) s += dRho[i] * jac[ja + i];
-    g[a] = s;
-    for (let b = 0; b <= a; b++) {
-      const jb = b * N;
-      let h = 0;
-      for (let i = 0; i < N; i++) h += hW[i] * jac[ja + i] * jac[jb + i];
-      H[a * P + b] = h;
-      H[b * P + a] = h;
+  // One pass over the points: each point's Jacobian column is read once (the rows are long, P is small).
+  g.fill(0);
+  H.fill(0);
+  const col = hessCol.length >= P ? hessCol : new Float64Array(P);
+  for (let i = 0; i < N; i++) {
+    const d = dRho[i];
+    const w = hW[i];
+    for (let a = 0; a < P; a++) col[a] = jac[a * N + i];
+    for (let a = 0; a < P; a++) {
+      const ja = col[a];
+      g[a] += d * ja;
+      const wa = w * ja;
+      const row = a * P;
+      for (let b = 0; b <= a; b++) H[row + b] += wa * col[b];
     }
   }
+  for (let a = 0; a < P; a++) for (let b = 0; b < a; b++) H[b * P + a] = H[a * P + b];
 }
+
+const hessCol = new Float64Array(16);
 
 /**
  * Cholesky solve of A x = b for a symmetric P×P matrix (row-major). Works in `L` (scratch, P×P).
@@ -229,9 +235,10 @@ export function levenbergMarquardt(
 
   const p = Float64Array.from(start);
   const trial = new Float64Array(P);
-  const model = new Float64Array(N);
-  const trialModel = new Float64Array(N);
-  const jac = new Float64Array(P * N);
+  let model = new Float64Array(N);
+  let trialModel = new Float64Array(N);
+  let jac = new Float64Array(P * N);
+  let trialJac = new Float64Array(P * N);
   const g = new Float64Array(P);
   const H = new Float64Array(P * P);
   const A = new Float64Array(P * P);
@@ -325,7 +332,8 @@ export function levenbergMarquardt(
       for (let b = 0; b < P; b++) hs += H[a * P + b] * step[b];
       predicted -= g[a] * step[a] + 0.5 * step[a] * hs;
     }
-    const ok = prob.evaluate(trial, trialModel, null);
+    // The Jacobian comes with the trial: most steps are accepted, and then it is not computed twice.
+    const ok = prob.evaluate(trial, trialModel, trialJac);
     const Ft = ok ? lossValue(prob.loss, prob.data, trialModel, prob.weights) : Infinity;
     if (Number.isFinite(Ft) && Ft <= F) {
       const reduction = F - Ft;
@@ -335,7 +343,8 @@ export function levenbergMarquardt(
         if (r > relStep) relStep = r;
       }
       p.set(trial);
-      if (!prob.evaluate(p, model, jac)) return finish('nonFinite', iterations, NaN);
+      [model, trialModel] = [trialModel, model];
+      [jac, trialJac] = [trialJac, jac];
       F = Ft;
       gradientAndHessian(prob, model, jac, g, H, dRho, hW);
       lambda = Math.max(lambda / 10, 1e-12);

@@ -3,7 +3,7 @@ import { choleskySolve } from './lm.js';
 
 /**
  * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest
- * lifetime's scale; a coarse geometric grid of lifetimes around it (τ_tail·2^k, k = −6 … 1) is tried
+ * lifetime's scale; a coarse geometric grid of lifetimes below and around it (τ_tail·2^k, k = −6, −4.5, −3, −1.5, 0, 1) is tried
  * in every combination, each with its amplitudes, background and scatter solved by weighted linear
  * least squares (weights 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best
  * few combinations start the full fit.
@@ -94,7 +94,7 @@ export function gridStarts(
   const hi = Math.max(...opts.tauMaxNs);
   let grid: number[];
   if (nc === 1) grid = [opts.tauTailNs / 2, opts.tauTailNs, opts.tauTailNs * 2];
-  else grid = [-6, -5, -4, -3, -2, -1, 0, 1].map((k) => opts.tauTailNs * 2 ** k);
+  else grid = [-6, -4.5, -3, -1.5, 0, 1].map((k) => opts.tauTailNs * 2 ** k);
   grid = grid.map((t) => Math.min(hi, Math.max(lo, t)));
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
@@ -141,19 +141,20 @@ export function gridStarts(
   const rhs = new Float64Array(C);
   let yWy = 0;
   for (let i = 0; i < nFit; i++) yWy += w[i] * y[i] * y[i];
-  for (let a = 0; a < C; a++) {
-    const ca = columns[a];
-    let r = 0;
-    for (let i = 0; i < nFit; i++) r += w[i] * ca[i] * y[i];
-    rhs[a] = r;
-    for (let b = 0; b <= a; b++) {
-      const cb = columns[b];
-      let g = 0;
-      for (let i = 0; i < nFit; i++) g += w[i] * ca[i] * cb[i];
-      gram[a * C + b] = g;
-      gram[b * C + a] = g;
+  // One pass over the channels for the whole Gram matrix (the columns are long, C is small).
+  const v = new Float64Array(C);
+  for (let i = 0; i < nFit; i++) {
+    const wi = w[i];
+    const wy = wi * y[i];
+    for (let a = 0; a < C; a++) v[a] = columns[a][i];
+    for (let a = 0; a < C; a++) {
+      const va = v[a];
+      rhs[a] += wy * va;
+      const wa = wi * va;
+      for (let b = 0; b <= a; b++) gram[a * C + b] += wa * v[b];
     }
   }
+  for (let a = 0; a < C; a++) for (let b = 0; b < a; b++) gram[b * C + a] = gram[a * C + b];
 
   // Every ascending choice of grid lifetimes for the free slots.
   const combos: number[][] = [];

@@ -11,12 +11,17 @@
  * - Derivatives with respect to the lifetime are taken with respect to ln τ (τ·∂/∂τ), which is what
  *   the fitter varies.
  *
- * Exact channel integration. Let the IRF be constant, qₖ/Δ, on channel k and h = Δ/τ, x = e^{−h}.
- * The convolution y(t) = ∫IRF(t′)e^{−(t−t′)/τ}dt′ integrated over channel i is
- *   Yᵢ/Δ = φ(h)·qᵢ + ψ(h)²·Sᵢ,   Sᵢ₊₁ = x·Sᵢ + qᵢ,  S₀ = 0,
- * with φ(h) = (h − 1 + e^{−h})/h² (the channel's own contribution) and ψ(h) = (1 − e^{−h})/h (an
- * exponential tail integrated over one channel). This is an O(N) recursion and holds for any τ
- * relative to Δ; as h → 0 it tends to the discrete convolution Σₖ qₖ e^{−(i−k)h}.
+ * Exact channel integration. Within channel k the IRF is taken as the straight line that keeps its
+ * channel integral qₖ and has the central-difference slope dₖ = (qₖ₊₁ − qₖ₋₁)/2 per channel, i.e.
+ * IRF(t) = (qₖ + dₖ(s − ½))/Δ at t = (k + s)Δ, 0 ≤ s < 1 (a piecewise-constant IRF would leave an error
+ * of order Δ²/(στ) against a smooth response; this takes it to order Δ³). With h = Δ/τ, x = e^{−h},
+ * the convolution y(t) = ∫IRF(t′)e^{−(t−t′)/τ}dt′ integrated over channel i is
+ *   Yᵢ/Δ = φ(h)·qᵢ + φ₁(h)·dᵢ + ψ(h)²·Sᵢ,   Sᵢ₊₁ = x·Sᵢ + qᵢ + ρ(h)·dᵢ,  S₀ = 0,
+ * with φ(h) = (h − 1 + e^{−h})/h² and φ₁(h) = (2 − h − (2 + h)e^{−h})/(2h³) (the channel's own
+ * contribution), ψ(h) = (1 − e^{−h})/h (an exponential tail integrated over one channel) and
+ * ρ(h) = [h(1 + e^{−h}) − 2(1 − e^{−h})]/(2h(1 − e^{−h})) (the slope's weight in the tail). This is an
+ * O(N) recursion, exact for that IRF at any τ relative to Δ; series replace the closed forms at small
+ * h, where they cancel.
  *
  * Repetition period T (≥ the window NΔ): earlier pulses add Σₙ≥₁ Yᵢ(t + nT). Once the shifted IRF is
  * complete inside the window their contribution is the window-end tail continued,
@@ -38,6 +43,54 @@ function dPhi(h: number): number {
   const e = Math.exp(-h);
   return (1 - e) / (h * h) - (2 * (h - 1 + e)) / (h * h * h);
 }
+/** φ₁(h) = (2 − h − (2 + h)e^{−h})/(2h³) and its derivative. */
+function phi1(h: number): number {
+  if (h < 0.1) {
+    const h2 = h * h;
+    return (
+      -1 / 12 +
+      h / 24 -
+      h2 / 80 +
+      (h2 * h) / 360 -
+      (h2 * h2) / 2016 +
+      (h2 * h2 * h) / 13440 -
+      (h2 * h2 * h2) / 103680
+    );
+  }
+  return (2 - h - (2 + h) * Math.exp(-h)) / (2 * h * h * h);
+}
+function dPhi1(h: number): number {
+  if (h < 0.1) {
+    const h2 = h * h;
+    return 1 / 24 - h / 40 + h2 / 120 - (h2 * h) / 504 + (h2 * h2) / 2688 - (h2 * h2 * h) / 17280;
+  }
+  const e = Math.exp(-h);
+  const N = 2 - h - (2 + h) * e;
+  const dN = -1 + (1 + h) * e;
+  return dN / (2 * h * h * h) - (3 * N) / (2 * h * h * h * h);
+}
+/** ρ(h) = [h(1 + e^{−h}) − 2(1 − e^{−h})]/(2h(1 − e^{−h})) and its derivative. */
+function rho(h: number): number {
+  if (h < 0.1) {
+    const h2 = h * h;
+    return h / 12 - (h2 * h) / 720 + (h2 * h2 * h) / 30240 - (h2 * h2 * h2 * h) / 1209600;
+  }
+  const e = Math.exp(-h);
+  const D = -Math.expm1(-h);
+  return (h * (1 + e) - 2 * D) / (2 * h * D);
+}
+function dRho(h: number): number {
+  if (h < 0.1) {
+    const h2 = h * h;
+    return 1 / 12 - h2 / 240 + (h2 * h2) / 6048 - (h2 * h2 * h2) / 172800;
+  }
+  const e = Math.exp(-h);
+  const D = -Math.expm1(-h);
+  const M = h * (1 + e) - 2 * D;
+  const dM = D - h * e;
+  return (dM * h * D - M * (D + h * e)) / (2 * h * h * D * D);
+}
+
 /** ψ(h) = (1 − e^{−h})/h and its derivative. */
 export function psi(h: number): number {
   if (h < 1e-2) return 1 - h / 2 + (h * h) / 6 - (h * h * h) / 24 + (h * h * h * h) / 120;
@@ -146,27 +199,43 @@ export function exponentialBasis(
   const h = binWidthNs / tauNs;
   const x = Math.exp(-h);
   const A = phi(h);
+  const A1 = phi1(h);
+  const rh = rho(h);
   const ps = psi(h);
   const K = ps * ps;
   // ∂/∂lnτ of h is −h.
   const dA = -h * dPhi(h);
+  const dA1 = -h * dPhi1(h);
+  const drh = -h * dRho(h);
   const dK = -h * 2 * ps * dPsi(h);
   const dx = x * h;
+  const wantShift = dShift !== null && dIrf !== null;
   let S = 0;
   let dS = 0;
   let sS = 0;
+  // Central-difference slopes, carried along: qPrev, q, qNext.
+  let qPrev = 0;
+  let q = n > 0 ? irf[0] : 0;
+  let gPrev = 0;
+  let gq = wantShift && n > 0 ? (dIrf as Float64Array)[0] : 0;
   for (let i = 0; i < n; i++) {
-    const q = irf[i];
-    out[i] = A * q + K * S;
-    if (dLnTau) dLnTau[i] = dA * q + dK * S + K * dS;
-    if (dShift && dIrf) {
-      const dq = dIrf[i];
-      dShift[i] = A * dq + K * sS;
-      sS = x * sS + dq;
+    const qNext = i + 1 < n ? irf[i + 1] : 0;
+    const d = 0.5 * (qNext - qPrev);
+    out[i] = A * q + A1 * d + K * S;
+    if (dLnTau) dLnTau[i] = dA * q + dA1 * d + dK * S + K * dS;
+    if (wantShift) {
+      const gNext = i + 1 < n ? (dIrf as Float64Array)[i + 1] : 0;
+      const gd = 0.5 * (gNext - gPrev);
+      (dShift as Float64Array)[i] = A * gq + A1 * gd + K * sS;
+      sS = x * sS + gq + rh * gd;
+      gPrev = gq;
+      gq = gNext;
     }
     // Order matters: dS uses the old S.
-    dS = x * dS + dx * S;
-    S = x * S + q;
+    dS = x * dS + dx * S + drh * d;
+    S = x * S + q + rh * d;
+    qPrev = q;
+    q = qNext;
   }
   if (periodNs !== null && periodNs > 0) {
     const R = periodNs / binWidthNs;
