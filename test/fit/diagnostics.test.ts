@@ -62,6 +62,20 @@ describe('durbinWatson', () => {
     expect(variance / expectedVar).toBeLessThan(1.1);
   });
 
+  it('has the white-noise mean and variance of Durbin & Watson for N = 1000', () => {
+    // REFERENCE-VALUES §11: N = 1000 → 1.998 ± 0.0632 (VERIFIED).
+    const n = 1000;
+    const reps = 400;
+    const next = normalSource(31);
+    const ds: number[] = [];
+    for (let k = 0; k < reps; k++) ds.push(durbinWatson(whiteNoise(next, n)));
+    const { mean, variance } = meanAndVariance(ds);
+    expect(Math.abs(mean - 1.998)).toBeLessThan(3 * (0.0632 / Math.sqrt(reps)));
+    // Sample SD of 400 draws is good to about ±3.5 % (1σ); allow 3σ.
+    expect(Math.sqrt(variance) / 0.0632).toBeGreaterThan(0.89);
+    expect(Math.sqrt(variance) / 0.0632).toBeLessThan(1.11);
+  });
+
   it('is near 2(1 − φ) for an AR(1) series, far below 2 when φ = 0.8', () => {
     // Large-N limit d → 2(1 − ρ₁) with ρ₁ = φ for AR(1) (common practice).
     const d = durbinWatson(ar1(normalSource(7), 4000, 0.8));

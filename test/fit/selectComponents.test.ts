@@ -3,7 +3,7 @@ import type { FitResult } from '../../shared/schema.js';
 import { SCHEMA_VERSION } from '../../shared/schema.js';
 import type { Histogram } from '../../src/io/types.js';
 import { fitModel } from '../../src/fit/fitModel.js';
-import { degeneracyOf, selectComponents, type FitModelFn } from '../../src/fit/selectComponents.js';
+import { degeneracyOf, meritOf, selectComponents, type FitModelFn } from '../../src/fit/selectComponents.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
 
 /** A FitResult with just the numbers model selection reads; the rest are inert. */
@@ -114,6 +114,16 @@ describe('degeneracyOf', () => {
 
   it('ignores a lifetime the user held fixed', () => {
     expect(degeneracyOf(stubFit([0.005, 3.5], 1000), { fix: { tau1Ns: 0.005 } })).toBeNull();
+  });
+});
+
+describe('meritOf', () => {
+  it('is the deviance for Poisson fits and the minimised χ² (from AIC) for least squares', () => {
+    const poisson = stubFit([2], 1234.5);
+    expect(meritOf(poisson)).toBe(1234.5);
+    // 1000 channels, dof 996 ⇒ k = 4 free parameters; AIC = merit + 2k (Akaike 1974).
+    const neyman: FitResult = { ...stubFit([2], 1234.5), statistic: 'neyman', chi2: 999, aic: 1100 + 8 };
+    expect(meritOf(neyman)).toBe(1100);
   });
 });
 
