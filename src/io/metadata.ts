@@ -1,5 +1,6 @@
 import { InputError } from '../errors.js';
-import { NS_PER, type TimeUnit } from '../../shared/units.js';
+import { NS_PER } from '../../shared/units.js';
+import { parseTimeUnit } from './columnNames.js';
 
 /**
  * Reading numbers out of `# key: value` metadata. Keys arrive normalised (lower case, spaces → `_`).
@@ -7,16 +8,10 @@ import { NS_PER, type TimeUnit } from '../../shared/units.js';
  * without a unit and a value without one is refused rather than guessed.
  */
 
-const TIME_UNITS: Record<string, TimeUnit> = {
-  fs: 'fs',
-  ps: 'ps',
-  ns: 'ns',
-  us: 'us',
-  µs: 'us',
-  μs: 'us',
-  ms: 'ms',
-  s: 's',
-};
+/** ns per unit, for every spelling `parseTimeUnit` knows. */
+const NS_PER_WORD: Record<string, number> = Object.fromEntries(
+  ['fs', 'ps', 'ns', 'us', 'µs', 'μs', 'ms', 's'].map((w) => [w, NS_PER[parseTimeUnit(w)!]]),
+);
 const RATE_HZ: Record<string, number> = { hz: 1, khz: 1e3, mhz: 1e6, ghz: 1e9 };
 
 const BIN_WIDTH_STEMS = [
@@ -69,49 +64,45 @@ function positive(key: string, value: string, num: string, ctx: MetadataContext,
   return v;
 }
 
-/** Time-valued keys: `<stem>_<unit>` or `<stem>` with the unit in the value. */
-function findTimes(meta: Record<string, string>, stems: string[], ctx: MetadataContext): Found[] {
-  const out: Found[] = [];
+/**
+ * Keys `<stem>_<unit>` with a plain number, or `<stem>` with the unit in the value (`12.2 ps`).
+ * `units` maps each unit word to its factor; the value times the factor is returned.
+ */
+function findScaled(
+  meta: Record<string, string>,
+  stems: string[],
+  units: Record<string, number>,
+  ctx: MetadataContext,
+  example: string,
+): { key: string; scaled: number }[] {
+  const out: { key: string; scaled: number }[] = [];
   for (const [key, value] of Object.entries(meta)) {
     for (const stem of stems) {
-      let unit: string | undefined;
-      let num: string;
+      const parsed = splitNumberUnit(value);
+      let unit: string;
       if (key === stem) {
-        const s = splitNumberUnit(value);
-        num = s.num;
-        unit = s.unit;
-        if (!(unit in TIME_UNITS)) throw bad(key, value, ctx, 'a time with a unit (for example "12.2 ps")');
-      } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in TIME_UNITS) {
+        unit = parsed.unit;
+        if (!(unit in units)) throw bad(key, value, ctx, `a value with a unit (for example "${example}")`);
+      } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in units) {
         unit = key.slice(stem.length + 1);
-        num = splitNumberUnit(value).num;
-        if (splitNumberUnit(value).unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
+        if (parsed.unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
       } else continue;
-      out.push({ key, ns: positive(key, value, num, ctx, 'a positive time') * NS_PER[TIME_UNITS[unit]] });
+      out.push({ key, scaled: positive(key, value, parsed.num, ctx, 'a positive number') * units[unit] });
     }
   }
   return out;
 }
 
-/** Rate-valued keys: `<stem>_<hz|khz|mhz|ghz>` or `<stem>` with the unit in the value; returned as a period. */
+function findTimes(meta: Record<string, string>, stems: string[], ctx: MetadataContext): Found[] {
+  return findScaled(meta, stems, NS_PER_WORD, ctx, '12.2 ps').map(({ key, scaled }) => ({ key, ns: scaled }));
+}
+
+/** Repetition rates, returned as periods (1/rate). */
 function findRatesAsPeriods(meta: Record<string, string>, ctx: MetadataContext): Found[] {
-  const out: Found[] = [];
-  for (const [key, value] of Object.entries(meta)) {
-    for (const stem of RATE_STEMS) {
-      let unit: string;
-      let num: string;
-      if (key === stem) {
-        ({ num, unit } = splitNumberUnit(value));
-        if (!(unit in RATE_HZ)) throw bad(key, value, ctx, 'a rate with a unit (for example "80 MHz")');
-      } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in RATE_HZ) {
-        unit = key.slice(stem.length + 1);
-        num = splitNumberUnit(value).num;
-        if (splitNumberUnit(value).unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
-      } else continue;
-      const hz = positive(key, value, num, ctx, 'a positive rate') * RATE_HZ[unit];
-      out.push({ key, ns: 1e9 / hz });
-    }
-  }
-  return out;
+  return findScaled(meta, RATE_STEMS, RATE_HZ, ctx, '80 MHz').map(({ key, scaled }) => ({
+    key,
+    ns: 1e9 / scaled,
+  }));
 }
 
 function agreed(

@@ -1,7 +1,7 @@
 import { InputError } from '../errors.js';
 import { NS_PER, type TimeUnit } from '../../shared/units.js';
 import type { Histogram, ImportReport } from './types.js';
-import { parseCellNumber, readTextTable } from './textTable.js';
+import { findColumn, parseCellNumber, readTextTable } from './textTable.js';
 import { classifyTimeColumn, parseTimeUnit } from './columnNames.js';
 import { formatNumber } from './validate.js';
 
@@ -46,10 +46,8 @@ export function parseArrivalsText(text: string, options: ArrivalsParseOptions): 
 
   let index = 0;
   if (options.column !== undefined) {
-    const want = String(options.column).trim().toLowerCase();
-    index = columns.findIndex((c) => c.toLowerCase() === want);
-    if (index < 0 && /^\d+$/.test(want)) index = Number(want) - 1;
-    if (index < 0 || index >= columns.length) {
+    index = findColumn(columns, options.column);
+    if (index < 0) {
       throw new InputError(
         `has no column '${options.column}'; it has ${columns.map((c) => `'${c}'`).join(', ')}`,
         {

@@ -1,7 +1,7 @@
 import { InputError } from '../errors.js';
 import { NS_PER, type TimeUnit } from '../../shared/units.js';
 import type { Histogram, ImportReport } from './types.js';
-import { parseCellNumber, readTextTable, type TextTable } from './textTable.js';
+import { findColumn, parseCellNumber, readTextTable, type TextTable } from './textTable.js';
 import { classifyTimeColumn, parseTimeUnit } from './columnNames.js';
 import { findMetadataBinWidth } from './metadata.js';
 import { checkCounts, formatNumber, relativeDiffers } from './validate.js';
@@ -263,24 +263,14 @@ function chooseCountsColumn(
     .join(', ');
   if (choices === '')
     throw new InputError('has no counts column', { file: source, line: table.headerLine ?? undefined });
-  let index: number;
   if (column === undefined) {
     if (columns.length - (timeIndex >= 0 ? 1 : 0) === 1) return timeIndex === 0 ? 1 : 0;
     throw new InputError(`has several counts columns; choose one of ${choices}`, { file: source });
   }
-  if (typeof column === 'number') {
-    index = column - 1;
-  } else {
-    const want = column.trim().toLowerCase();
-    index = columns.findIndex((c) => c.toLowerCase() === want);
-    if (index < 0 && /^\d+$/.test(want)) index = Number(want) - 1;
-    if (index < 0)
-      throw new InputError(`has no column '${column}'; choose one of ${choices}`, { file: source });
-  }
-  if (!Number.isInteger(index) || index < 0 || index >= columns.length) {
-    throw new InputError(`has no column ${column} (it has ${columns.length}); choose one of ${choices}`, {
-      file: source,
-    });
+  const index = findColumn(columns, column);
+  if (index < 0) {
+    const what = typeof column === 'number' ? `${column} (it has ${columns.length})` : `'${column}'`;
+    throw new InputError(`has no column ${what}; choose one of ${choices}`, { file: source });
   }
   if (index === timeIndex) {
     throw new InputError(`column ${column} is the time axis, not counts; choose one of ${choices}`, {

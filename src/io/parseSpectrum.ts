@@ -1,6 +1,6 @@
 import { InputError } from '../errors.js';
 import type { Spectrum, SpectrumAxis, SpectrumImportReport } from './types.js';
-import { parseCellNumber, readTextTable, type TextTable } from './textTable.js';
+import { findColumn, parseCellNumber, readTextTable, type TextTable } from './textTable.js';
 import { splitNameUnit } from './columnNames.js';
 import { metadataNumber } from './metadata.js';
 import { MAX_COUNTS } from './validate.js';
@@ -164,9 +164,7 @@ export function parseSpectrumText(text: string, options: SpectrumParseOptions): 
   const list = others.map((j) => `'${columns[j]}' (${j + 1})`).join(', ');
   let yIndex: number;
   if (options.column !== undefined) {
-    const want = String(options.column).trim().toLowerCase();
-    yIndex = columns.findIndex((c) => c.toLowerCase() === want);
-    if (yIndex < 0 && /^\d+$/.test(want)) yIndex = Number(want) - 1;
+    yIndex = findColumn(columns, options.column);
     if (!others.includes(yIndex))
       throw new InputError(`has no ordinate column '${options.column}'; choose one of ${list}`, {
         file: source,

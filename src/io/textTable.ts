@@ -308,3 +308,17 @@ function detectDecimalMark(rows: TableRow[], delimiter: Delimiter, source: strin
   }
   return comma ? ',' : '.';
 }
+
+/**
+ * Index of a column given by header name (case-insensitive) or 1-based position; a digit string that
+ * is no header name is a position. −1 when there is no such column.
+ */
+export function findColumn(columns: string[], column: string | number): number {
+  if (typeof column === 'number')
+    return Number.isInteger(column) && column >= 1 && column <= columns.length ? column - 1 : -1;
+  const want = column.trim().toLowerCase();
+  const byName = columns.findIndex((c) => c.toLowerCase() === want);
+  if (byName >= 0) return byName;
+  const position = /^\d+$/.test(want) ? Number(want) : 0;
+  return position >= 1 && position <= columns.length ? position - 1 : -1;
+}

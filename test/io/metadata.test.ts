@@ -24,7 +24,7 @@ describe('metadataBinWidthNs', () => {
 
   it('refuses a value that is not a positive number, and a unit-less key with a unit-less value', () => {
     expect(() => metadataBinWidthNs({ bin_width_ns: 'fast' })).toThrow(InputError);
-    expect(() => metadataBinWidthNs({ bin_width_ns: '-1' })).toThrow(/not a positive time/);
+    expect(() => metadataBinWidthNs({ bin_width_ns: '-1' })).toThrow(/not a positive number/);
     expect(() => metadataBinWidthNs({ bin_width: '16' })).toThrow(/with a unit/);
     expect(() => metadataBinWidthNs({ bin_width_ps: '16 ns' })).toThrow(/plain number of ps/);
   });
