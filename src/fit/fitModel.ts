@@ -218,7 +218,11 @@ function runFit(setup: FitSetup): FitRun {
   }
   const chosen = best!;
   if (chosen.lm.stop === 'nonFinite' || !Number.isFinite(chosen.lm.objective))
-    throw new ComputationError('the fit failed: the model could not be evaluated at any starting point');
+    throw new ComputationError(
+      setup.statistic === 'neyman'
+        ? 'the fit failed: the model is not finite at any starting point'
+        : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
+    );
   const modelFull = new Float64Array(setup.channels);
   model.evaluate(chosen.all, modelFull, null, freeRow);
   return { model, all: chosen.all, free, lm: chosen.lm, modelFull, lower, upper };
@@ -328,7 +332,7 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     }
     const tauFixed = !freeP[L.lnTau[k]];
     const c: ComponentResult = {
-      tauNs: taus[k],
+      tauNs: tauFixed ? (setup.fix[`tau${k + 1}Ns`] ?? taus[k]) : taus[k],
       tauErrNs: tauFixed ? 0 : taus[k] * sd(L.lnTau[k]),
       amplitude: amps[k],
       amplitudeErr: sd(L.amplitude[k]),

@@ -223,7 +223,9 @@ export function gridStarts(
       // A component switched off by the linear solve restarts small but alive, so that it can move.
       params[L.amplitude[j]] = coef[j] !== 0 ? coef[j] : 0.01 * maxAmp || 1;
     }
-    if (bgCol >= 0) params[L.background] = Math.max(coef[cols.indexOf(bgCol)], 0);
+    // A background of exactly 0 would make the model 0 under stray counts before the pulse (an
+    // impossible Poisson model); start it slightly above.
+    if (bgCol >= 0) params[L.background] = Math.max(coef[cols.indexOf(bgCol)], 1e-2);
     if (scCol >= 0) params[L.scatter] = Math.max(coef[cols.indexOf(scCol)], 0);
     results.push({ params, chi2 });
   }
