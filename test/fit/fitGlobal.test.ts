@@ -100,4 +100,15 @@ describe('fitGlobal input checks', () => {
     expect(() => fitGlobal([], { components: 2 })).toThrow(InputError);
     expect(() => fitGlobal([], { components: 2 })).toThrow('a global fit needs at least one member');
   });
+
+  it('names the member whose decay cannot be fitted', () => {
+    const good = member(0.5, 0);
+    const empty: GlobalMember = {
+      sample: 'blank',
+      irf: good.irf,
+      decay: { ...good.decay, counts: new Float64Array(good.decay.counts.length), source: 'blank.csv' },
+    };
+    expect(() => fitGlobal([good, empty], { components: 2 })).toThrow(InputError);
+    expect(() => fitGlobal([good, empty], { components: 2 })).toThrow('blank.csv: the decay holds no counts');
+  });
 });
