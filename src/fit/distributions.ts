@@ -4,9 +4,12 @@
  *
  * The incomplete gamma function is evaluated by its power series below x < a + 1 and by its continued
  * fraction (modified Lentz) above, the standard split that keeps both converging quickly
- * (Abramowitz & Stegun 6.5.29 and 6.5.31). The normal tail uses the same machinery through
- * erfc(x) = Q(½, x²), so one well-tested kernel serves both distributions.
+ * (Abramowitz & Stegun 6.5.29 and 6.5.31). The normal distribution rests on the model layer's erfc.
  */
+
+import { normalCdf } from '../model/special.js';
+
+export { normalCdf };
 
 const EPS = 2.220446049250313e-16;
 const TINY = 1e-300;
@@ -134,20 +137,9 @@ export function chi2Quantile(p: number, k: number): number {
   return x;
 }
 
-/** erfc(x) through the incomplete gamma function: erfc(x) = Q(½, x²) for x ≥ 0. */
-function erfcViaGamma(x: number): number {
-  if (Number.isNaN(x)) return NaN;
-  return x >= 0 ? gammaQ(0.5, x * x) : 2 - gammaQ(0.5, x * x);
-}
-
-/** Standard normal cumulative distribution Φ(z). */
-export function normalCdf(z: number): number {
-  return 0.5 * erfcViaGamma(-z / Math.SQRT2);
-}
-
 /** Standard normal survival function 1 − Φ(z), accurate in the upper tail. */
 export function normalSf(z: number): number {
-  return 0.5 * erfcViaGamma(z / Math.SQRT2);
+  return normalCdf(-z);
 }
 
 // Acklam's rational approximation to the normal quantile (P. J. Acklam, 2003; relative error
