@@ -1,4 +1,80 @@
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import type { Command } from 'commander';
+import type { SampleResult, SeriesResult } from '../../shared/schema.js';
+import { mergeResults, parseResultsJson } from '../../src/batch/merge.js';
+import { runSeries } from '../../src/batch/series.js';
+import { parseSettings } from '../../src/batch/settings.js';
+import { InputError } from '../../src/errors.js';
+import { seriesOptions } from '../batch/runBatch.js';
+import { reportWriter } from '../batch/report.js';
+import { briefOf } from '../batch/protocol.js';
+import { removeStaleTemporaries, writeBatchOutputs } from '../batch/writeOutputs.js';
+import { mkdirSync } from 'node:fs';
+import { EXIT } from '../exitCodes.js';
+import { action, ExitWith } from '../run.js';
 
-/** Registers this command on the program. (Not yet built: registers nothing.) */
-export function register(_program: Command): void {}
+function readText(path: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    throw new InputError(
+      code === 'ENOENT' ? 'not found; is this a batch output directory?' : `cannot be read (${code})`,
+      { file: path },
+    );
+  }
+}
+
+export function register(program: Command): void {
+  program
+    .command('merge')
+    .description('Join the outputs of `lumirate batch --shard K/N` runs into one set of outputs.')
+    .argument('<dirs...>', 'batch output directories (each holding results.json)')
+    .requiredOption('-o, --out <dir>', 'directory for the merged outputs')
+    .option(
+      '-s, --settings <file>',
+      'the settings file of the batch, to run its series on the merged samples',
+    )
+    .option('--no-report', 'do not write report.html')
+    .action(
+      action((dirs: string[], opts: { out: string; settings?: string; report: boolean }) => {
+        const parts = dirs.map((dir) => {
+          const path = join(dir, 'results.json');
+          return { source: path, results: parseResultsJson(readText(path), path) };
+        });
+        const merged: SampleResult[] = mergeResults(parts);
+        const series: SeriesResult[] = [];
+        const problems: string[] = [];
+        if (opts.settings) {
+          const settings = parseSettings(readText(opts.settings), { source: opts.settings });
+          for (const req of settings.series) {
+            try {
+              series.push(runSeries(merged.map(briefOf), seriesOptions(req)));
+            } catch (err) {
+              problems.push(
+                `series ${req.model} against ${req.x}: ${err instanceof Error ? err.message : String(err)}`,
+              );
+            }
+          }
+        }
+        mkdirSync(opts.out, { recursive: true });
+        removeStaleTemporaries(opts.out);
+        writeBatchOutputs(
+          opts.out,
+          merged.map((r) => ({ brief: briefOf(r), json: () => JSON.stringify(r) })),
+          series,
+          {
+            title: 'lumirate batch (merged)',
+            writeReport: opts.report ? reportWriter(opts.out, 'lumirate batch (merged)') : undefined,
+          },
+        );
+        const failed = merged.filter((r) => r.status === 'failed');
+        process.stderr.write(
+          `merge: ${merged.length - failed.length} ok, ${failed.length} failed, from ${dirs.length} directories; results in ${opts.out}\n`,
+        );
+        for (const p of problems) process.stderr.write(`  ${p}\n`);
+        if (failed.length) throw new ExitWith(EXIT.someSamplesFailed);
+      }),
+    );
+}

@@ -1,0 +1,49 @@
+import type { SampleResult } from '../../shared/schema.js';
+import type { InputLocation } from '../../src/errors.js';
+import type { SampleInputs } from '../../src/batch/runSample.js';
+import type { SampleSettings } from '../../src/batch/settings.js';
+
+/** A file a worker reads for a sample: where it is, and which manifest cell or setting named it. */
+export interface FileToRead {
+  role: keyof SampleInputs;
+  absolutePath: string;
+  /** As written, for messages. */
+  written: string;
+  where: InputLocation;
+}
+
+export interface MemberTask {
+  settings: SampleSettings;
+  files: FileToRead[];
+}
+
+/** One unit of work: a lone sample, or a group fitted with linked lifetimes. */
+export interface WorkTask {
+  id: number;
+  kind: 'sample' | 'group';
+  members: MemberTask[];
+}
+
+/** What comes back for each member: the full result as JSON text and a copy without curves. */
+export interface MemberReply {
+  json: string;
+  brief: SampleResult;
+}
+
+export interface WorkReply {
+  id: number;
+  results: MemberReply[];
+}
+
+export interface WorkerSetup {
+  lumirateVersion: string;
+  /** Leave the plotting curves out of results.json (smaller files for very large batches). */
+  curves: boolean;
+}
+
+/** A result without its plotting curves: what the main thread keeps in memory for tables and series. */
+export function briefOf(result: SampleResult): SampleResult {
+  if (!result.fit) return result;
+  const { curves: _curves, ...fit } = result.fit;
+  return { ...result, fit: fit as SampleResult['fit'] };
+}

@@ -1,0 +1,301 @@
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import type { SampleResult, SeriesResult } from '../../shared/schema.js';
+import { sha256Hex, stableStringify } from '../../src/batch/hash.js';
+import { parseManifest, type ManifestRow } from '../../src/batch/manifest.js';
+import { parseResultsJson } from '../../src/batch/merge.js';
+import { failedSample, sampleFileRefs, settingsRecord, type RunContext } from '../../src/batch/runSample.js';
+import { runSeries } from '../../src/batch/series.js';
+import {
+  EMPTY_SETTINGS,
+  parseSettings,
+  resolveSampleSettings,
+  type BatchSettings,
+  type SampleSettings,
+  type SeriesRequest,
+} from '../../src/batch/settings.js';
+import { shardOf, type Shard } from '../../src/batch/shard.js';
+import { InputError, type InputLocation } from '../../src/errors.js';
+import { packageVersion } from '../version.js';
+import { Journal, readJournal } from './journal.js';
+import { siblingModule, WorkerPool } from './pool.js';
+import { ProgressBar } from './progress.js';
+import { reportWriter } from './report.js';
+import {
+  briefOf,
+  type FileToRead,
+  type MemberTask,
+  type WorkReply,
+  type WorkTask,
+  type WorkerSetup,
+} from './protocol.js';
+import { removeStaleTemporaries, writeBatchOutputs, type OutputEntry } from './writeOutputs.js';
+
+export interface BatchRunOptions {
+  manifestPath: string;
+  outDir: string;
+  settingsPath?: string;
+  /** Worker threads. Default: the number of cores. */
+  jobs?: number;
+  shard?: Shard;
+  /** Skip samples whose inputs and settings are unchanged since the last run into outDir. */
+  resume?: boolean;
+  /** No progress bar. */
+  quiet?: boolean;
+  /** Keep the plotting curves in results.json. Default: true. */
+  curves?: boolean;
+  /** Write report.html, the offline viewer page. Default: true. */
+  report?: boolean;
+  /** Called once the workers run, with a function that stops the batch (used for Ctrl-C). */
+  onStart?: (stop: () => void) => void;
+}
+
+export interface BatchSummary {
+  total: number;
+  ok: number;
+  failed: number;
+  /** Reused from an earlier run by --resume. */
+  reused: number;
+  /** Not run because the batch was stopped. */
+  notRun: number;
+  interrupted: boolean;
+  failures: { sample: string; error: string }[];
+  seriesErrors: string[];
+}
+
+export const JOURNAL_NAME = '.journal.ndjson';
+
+function readText(path: string, what: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    throw new InputError(`${what} ${code === 'ENOENT' ? 'not found' : `cannot be read (${code})`}`, {
+      file: path,
+    });
+  }
+}
+
+/** Where a file role of a sample was named: its manifest cell when filled, else the settings key. */
+function whereNamed(
+  row: ManifestRow,
+  column: 'decay' | 'irf' | 'absorption' | 'emission',
+  settings: BatchSettings,
+  manifest: string,
+): InputLocation {
+  const cell = row.cells[column];
+  if (cell && cell.value.trim() !== '') return { file: manifest, line: cell.line, column: cell.column };
+  return settings.locations[column] ?? { file: manifest, line: row.line };
+}
+
+interface Prepared {
+  row: ManifestRow;
+  settings: SampleSettings;
+  files: FileToRead[];
+}
+
+/** Hashes of a sample's current input files, or null when one cannot be read (it will then rerun and fail). */
+function currentHashes(p: Prepared): { role: string; path: string; sha256: string }[] | null {
+  try {
+    return p.files.map((f) => ({
+      role: f.role,
+      path: f.written,
+      sha256: sha256Hex(readFileSync(f.absolutePath)),
+    }));
+  } catch {
+    return null;
+  }
+}
+
+/** A previous result can stand when it succeeded with the same version, settings and input bytes. */
+function reusable(prev: SampleResult, p: Prepared, version: string): boolean {
+  if (prev.status !== 'ok' || prev.provenance?.lumirateVersion !== version) return false;
+  if (stableStringify(prev.provenance.settings) !== stableStringify(settingsRecord(p.settings))) return false;
+  if (prev.manifestRow !== p.settings.manifestRow) return false;
+  const now = currentHashes(p);
+  return now !== null && stableStringify(now) === stableStringify(prev.provenance.inputs);
+}
+
+/** Previous results in outDir: results.json of a finished run, then the journal of an interrupted one (later wins). */
+function previousResults(outDir: string): Map<string, { text: string; value: SampleResult }> {
+  const out = new Map<string, { text: string; value: SampleResult }>();
+  const resultsPath = join(outDir, 'results.json');
+  if (existsSync(resultsPath)) {
+    try {
+      for (const r of parseResultsJson(readFileSync(resultsPath, 'utf8'), resultsPath))
+        out.set(r.sample, { text: JSON.stringify(r), value: r });
+    } catch {
+      // An unreadable results.json just means nothing to reuse from it.
+    }
+  }
+  for (const line of readJournal(join(outDir, JOURNAL_NAME))) {
+    const r = line.value as SampleResult;
+    if (r && typeof r.sample === 'string') out.set(r.sample, { text: line.text, value: r });
+  }
+  return out;
+}
+
+/** Runs a batch to completion (or until stopped) and writes its outputs. Throws InputError for an unusable manifest or settings file. */
+export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> {
+  const version = packageVersion();
+  const manifestPath = options.manifestPath;
+  const manifestDir = dirname(resolve(manifestPath));
+  const manifest = parseManifest(readText(manifestPath, 'manifest'), { source: manifestPath });
+  const settings = options.settingsPath
+    ? parseSettings(readText(options.settingsPath, 'settings file'), { source: options.settingsPath })
+    : EMPTY_SETTINGS;
+  const startedUtc = new Date().toISOString();
+  const ctx: RunContext = { lumirateVersion: version, timeUtc: startedUtc };
+
+  const outDir = options.outDir;
+  mkdirSync(outDir, { recursive: true });
+  removeStaleTemporaries(outDir);
+
+  // Resolve every row; a row that cannot be resolved fails on its own with the cell that is wrong.
+  const entries: OutputEntry[] = [];
+  const prepared: Prepared[] = [];
+  for (const row of manifest.rows) {
+    let s: SampleSettings;
+    try {
+      s = resolveSampleSettings(row, settings, manifestPath);
+    } catch (err) {
+      const group = row.cells.group?.value.trim() || null;
+      if (options.shard && shardOf(row.sample, group, options.shard.count) !== options.shard.index) continue;
+      const r = failedSample(
+        { sample: row.sample, manifestRow: row.row, metadata: row.metadata, group },
+        err,
+        ctx,
+      );
+      entries.push({ brief: r, json: () => JSON.stringify(r) });
+      continue;
+    }
+    if (options.shard && shardOf(s.sample, s.group, options.shard.count) !== options.shard.index) continue;
+    const files: FileToRead[] = sampleFileRefs(s).map(({ role, ref }) => ({
+      role,
+      absolutePath: resolve(manifestDir, ref.path),
+      written: ref.column === undefined ? ref.path : `${ref.path}#${ref.column}`,
+      where: whereNamed(row, role, settings, manifestPath),
+    }));
+    // Without curves the fitter skips filling them, which is also faster.
+    if (options.curves === false) s.fit = { ...s.fit, curves: false };
+    prepared.push({ row, settings: s, files });
+  }
+
+  // Reuse what an earlier run finished, when nothing it depends on changed.
+  let reused = 0;
+  let toRun = prepared;
+  if (options.resume) {
+    const prev = previousResults(outDir);
+    const keep = new Set<string>();
+    const groups = new Map<string, Prepared[]>();
+    for (const p of prepared) {
+      if (p.settings.group) groups.set(p.settings.group, [...(groups.get(p.settings.group) ?? []), p]);
+      else if (prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.value, p, version))
+        keep.add(p.settings.sample);
+    }
+    // A group is reused only whole: its lifetimes were fitted from all members together.
+    for (const members of groups.values()) {
+      if (
+        members.every(
+          (p) => prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.value, p, version),
+        )
+      ) {
+        for (const p of members) keep.add(p.settings.sample);
+      }
+    }
+    for (const sample of keep) {
+      const { text, value } = prev.get(sample)!;
+      entries.push({ brief: briefOf(value), json: () => text });
+    }
+    reused = keep.size;
+    toRun = prepared.filter((p) => !keep.has(p.settings.sample));
+  }
+
+  // Tasks in manifest order; a group becomes one task at the position of its first member.
+  const tasks: WorkTask[] = [];
+  const groupTask = new Map<string, WorkTask>();
+  for (const p of toRun) {
+    const member: MemberTask = { settings: p.settings, files: p.files };
+    const g = p.settings.group;
+    if (g) {
+      const t = groupTask.get(g);
+      if (t) t.members.push(member);
+      else {
+        const task: WorkTask = { id: tasks.length, kind: 'group', members: [member] };
+        groupTask.set(g, task);
+        tasks.push(task);
+      }
+    } else tasks.push({ id: tasks.length, kind: 'sample', members: [member] });
+  }
+  const nToRun = toRun.length;
+
+  const journal = new Journal(join(outDir, JOURNAL_NAME), { append: options.resume === true });
+  const progress = ProgressBar.for(nToRun, options.quiet === true);
+  const jobs = Math.max(1, options.jobs ?? availableParallelism());
+  const setup: WorkerSetup = { lumirateVersion: version, curves: options.curves !== false };
+  const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
+  let done = 0;
+  let failedNow = 0;
+  let interrupted = false;
+  options.onStart?.(() => {
+    interrupted = true;
+    pool.stop();
+  });
+  try {
+    await pool.run(tasks, (reply) => {
+      for (const r of reply.results) {
+        const at = journal.append(r.json);
+        entries.push({ brief: r.brief, json: () => journal.read(at) });
+        done++;
+        if (r.brief.status === 'failed') failedNow++;
+      }
+      progress.update(done, failedNow);
+    });
+  } finally {
+    progress.finish();
+    await pool.close();
+  }
+
+  // Series need the whole batch: a shard leaves them to the merge.
+  const seriesErrors: string[] = [];
+  const series: SeriesResult[] = [];
+  const briefs = entries.map((e) => e.brief);
+  if (!options.shard && !interrupted) {
+    for (const req of settings.series) {
+      try {
+        series.push(runSeries(briefs, seriesOptions(req)));
+      } catch (err) {
+        seriesErrors.push(
+          `series ${req.model} against ${req.x}: ${err instanceof Error ? err.message : String(err)}`,
+        );
+      }
+    }
+  }
+  const title = `lumirate batch: ${manifestPath.split(/[\\/]/).pop()}${options.shard ? ` (share ${options.shard.index}/${options.shard.count})` : ''}`;
+  writeBatchOutputs(outDir, entries, series, {
+    title,
+    writeReport: options.report === false ? undefined : reportWriter(outDir, title),
+  });
+  // The journal is only needed to finish an interrupted batch; a complete one lives in results.json.
+  if (interrupted) journal.close();
+  else journal.remove();
+
+  const failures = briefs
+    .filter((b) => b.status === 'failed')
+    .map((b) => ({ sample: b.sample, error: b.error ?? 'failed' }));
+  return {
+    total: entries.length + (nToRun - done),
+    ok: briefs.length - failures.length,
+    failed: failures.length,
+    reused,
+    notRun: nToRun - done,
+    interrupted,
+    failures,
+    seriesErrors,
+  };
+}
+
+export function seriesOptions(req: SeriesRequest): Parameters<typeof runSeries>[1] {
+  return { model: req.model, x: req.x, group: req.group, r0Nm: req.r0Nm, tau0Ns: req.tau0Ns };
+}

@@ -1,0 +1,112 @@
+/**
+ * Worker thread of `lumirate batch`: reads a sample's files, hashes them, runs the fit and the physics,
+ * and sends back the result as JSON text (serialised here, in parallel, rather than on the main thread).
+ * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
+ */
+import { readFileSync } from 'node:fs';
+import { parentPort, workerData } from 'node:worker_threads';
+import type { SampleResult } from '../../shared/schema.js';
+import { sha256Hex } from '../../src/batch/hash.js';
+import {
+  failedSample,
+  runGroup,
+  runSample,
+  type HistogramCache,
+  type InputFile,
+  type RunContext,
+  type SampleInputs,
+} from '../../src/batch/runSample.js';
+import { InputError } from '../../src/errors.js';
+import {
+  briefOf,
+  type FileToRead,
+  type MemberTask,
+  type WorkReply,
+  type WorkTask,
+  type WorkerSetup,
+} from './protocol.js';
+
+const setup = workerData as WorkerSetup;
+const cache: HistogramCache = new Map();
+
+function readInput(f: FileToRead): InputFile {
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(f.absolutePath);
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    const why =
+      code === 'ENOENT'
+        ? 'not found'
+        : code === 'EISDIR'
+          ? 'is a directory'
+          : code === 'EACCES'
+            ? 'cannot be read (permission denied)'
+            : `cannot be read (${code ?? String(err)})`;
+    throw new InputError(`${f.role} file '${f.written}' ${why}`, f.where);
+  }
+  return { text: bytes.toString('utf8'), sha256: sha256Hex(bytes) };
+}
+
+function readInputs(m: MemberTask): SampleInputs {
+  const inputs: Partial<SampleInputs> = {};
+  for (const f of m.files) inputs[f.role] = readInput(f);
+  return inputs as SampleInputs;
+}
+
+function withoutCurves(r: SampleResult): SampleResult {
+  return setup.curves ? r : briefOf(r);
+}
+
+function runTask(task: WorkTask): SampleResult[] {
+  const ctx: RunContext = { lumirateVersion: setup.lumirateVersion, timeUtc: new Date().toISOString() };
+  const fail = (m: MemberTask, err: unknown, inputs?: Partial<SampleInputs>) =>
+    failedSample({ ...m.settings }, err, ctx, m.settings, inputs);
+  if (task.kind === 'sample') {
+    const m = task.members[0];
+    let inputs: SampleInputs | undefined;
+    try {
+      inputs = readInputs(m);
+      return [runSample(m.settings, inputs, ctx, cache)];
+    } catch (err) {
+      return [fail(m, err, inputs)];
+    }
+  }
+  // A group: members whose files cannot be read fail alone; the rest are fitted together.
+  const readable: { settings: MemberTask['settings']; inputs: SampleInputs }[] = [];
+  const out = new Map<string, SampleResult>();
+  for (const m of task.members) {
+    try {
+      readable.push({ settings: m.settings, inputs: readInputs(m) });
+    } catch (err) {
+      out.set(m.settings.sample, fail(m, err));
+    }
+  }
+  if (readable.length > 0) {
+    try {
+      for (const r of runGroup(readable, ctx, cache)) out.set(r.sample, r);
+    } catch (err) {
+      const why = err instanceof Error ? err.message : String(err);
+      for (const r of readable) {
+        out.set(
+          r.settings.sample,
+          fail(
+            { settings: r.settings, files: [] },
+            new Error(`group '${r.settings.group}': ${why}`),
+            r.inputs,
+          ),
+        );
+      }
+    }
+  }
+  return task.members.map((m) => out.get(m.settings.sample)!);
+}
+
+parentPort!.on('message', (task: WorkTask) => {
+  const results = runTask(task).map(withoutCurves);
+  const reply: WorkReply = {
+    id: task.id,
+    results: results.map((r) => ({ json: JSON.stringify(r), brief: briefOf(r) })),
+  };
+  parentPort!.postMessage(reply);
+});

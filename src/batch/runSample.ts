@@ -1,0 +1,270 @@
+import {
+  SCHEMA_VERSION,
+  type GlobalGroupResult,
+  type Provenance,
+  type SampleResult,
+} from '../../shared/schema.js';
+import { InputError } from '../errors.js';
+import { fitDecay } from '../fit/fitDecay.js';
+import { fitGlobal } from '../fit/fitGlobal.js';
+import type { FitOptions } from '../fit/options.js';
+import { checkBinWidthsAgree } from '../io/checkBinWidthsAgree.js';
+import { parseHistogramText } from '../io/parseHistogram.js';
+import { parseSpectrumText } from '../io/parseSpectrum.js';
+import type { Histogram } from '../io/types.js';
+import { ratesFromFit } from '../physics/rates.js';
+import { refractiveIndexOf } from '../physics/standards.js';
+import { stricklerBerg } from '../physics/stricklerBerg.js';
+import type { FitResult } from '../../shared/schema.js';
+import type { FileRef, SampleSettings } from './settings.js';
+
+/** A file's text with the SHA-256 of its bytes, read by the caller. */
+export interface InputFile {
+  text: string;
+  sha256: string;
+}
+
+/** The files of one sample, keyed by role; absent roles were not asked for. */
+export interface SampleInputs {
+  decay: InputFile;
+  irf?: InputFile;
+  absorption?: InputFile;
+  emission?: InputFile;
+}
+
+export interface RunContext {
+  lumirateVersion: string;
+  /** ISO 8601 UTC time stamped on the results. */
+  timeUtc: string;
+}
+
+/** Parsed histograms by `path#column`, kept by a caller that runs many samples sharing one IRF file. */
+export type HistogramCache = Map<string, Histogram>;
+
+function refText(ref: FileRef): string {
+  return ref.column === undefined ? ref.path : `${ref.path}#${ref.column}`;
+}
+
+/** The settings a result records: what the sample was run with, JSON-ready. */
+export function settingsRecord(s: SampleSettings): Record<string, unknown> {
+  return {
+    decay: refText(s.decay),
+    irf: s.irf ? refText(s.irf) : null,
+    fit: s.fit,
+    qy: s.qy,
+    qyErr: s.qyErr,
+    solvent: s.solvent,
+    refractiveIndex: s.refractiveIndex,
+    absorption: s.absorption ? refText(s.absorption) : null,
+    emission: s.emission ? refText(s.emission) : null,
+    group: s.group,
+  };
+}
+
+/** Provenance of one sample: version, every input file with its hash, the settings, the time, the seed. */
+export function provenanceOf(
+  s: SampleSettings,
+  hashes: { role: string; path: string; sha256: string }[],
+  ctx: RunContext,
+): Provenance {
+  return {
+    lumirateVersion: ctx.lumirateVersion,
+    schemaVersion: SCHEMA_VERSION,
+    inputs: hashes,
+    settings: settingsRecord(s),
+    timeUtc: ctx.timeUtc,
+    seed: s.fit.seed ?? null,
+  };
+}
+
+/** The file roles a sample reads, in a fixed order. */
+export function sampleFileRefs(s: SampleSettings): { role: keyof SampleInputs; ref: FileRef }[] {
+  const out: { role: keyof SampleInputs; ref: FileRef }[] = [{ role: 'decay', ref: s.decay }];
+  if (s.irf) out.push({ role: 'irf', ref: s.irf });
+  if (s.absorption) out.push({ role: 'absorption', ref: s.absorption });
+  if (s.emission) out.push({ role: 'emission', ref: s.emission });
+  return out;
+}
+
+function inputHashes(s: SampleSettings, inputs: Partial<SampleInputs>): Provenance['inputs'] {
+  return sampleFileRefs(s)
+    .filter(({ role }) => inputs[role])
+    .map(({ role, ref }) => ({ role, path: refText(ref), sha256: inputs[role]!.sha256 }));
+}
+
+function parseHistogramCached(file: InputFile, ref: FileRef, cache: HistogramCache | undefined): Histogram {
+  const key = `${refText(ref)}\u0000${file.sha256}`;
+  const hit = cache?.get(key);
+  if (hit) return hit;
+  const h = parseHistogramText(file.text, { source: refText(ref), column: ref.column });
+  cache?.set(key, h);
+  return h;
+}
+
+/** Reads the decay and IRF of a sample and checks that their channels agree. */
+export function sampleHistograms(
+  s: SampleSettings,
+  inputs: SampleInputs,
+  cache?: HistogramCache,
+): { decay: Histogram; irf: Histogram | null } {
+  const decay = parseHistogramText(inputs.decay.text, { source: refText(s.decay), column: s.decay.column });
+  let irf: Histogram | null = null;
+  if (s.irf) {
+    if (!inputs.irf) throw new InputError(`the IRF file of sample '${s.sample}' was not read`);
+    irf = parseHistogramCached(inputs.irf, s.irf, cache);
+    checkBinWidthsAgree(decay, irf);
+  }
+  return { decay, irf };
+}
+
+/** Adds rates (with a quantum yield) and the Strickler–Berg comparison (with both spectra) to a fit. */
+function physicsOf(
+  s: SampleSettings,
+  inputs: SampleInputs,
+  fit: FitResult,
+): Pick<SampleResult, 'rates' | 'sb'> & { warnings: string[] } {
+  const out: Pick<SampleResult, 'rates' | 'sb'> & { warnings: string[] } = { warnings: [] };
+  if (s.qy !== null) out.rates = ratesFromFit(fit, { qy: s.qy, qyErr: s.qyErr ?? 0 });
+  if (s.absorption || s.emission) {
+    if (!s.absorption || !s.emission) {
+      out.warnings.push(
+        `Strickler–Berg needs both spectra; only the ${s.absorption ? 'absorption' : 'emission'} was given`,
+      );
+      return out;
+    }
+    const n = s.refractiveIndex ?? (s.solvent ? refractiveIndexOf(s.solvent) : null);
+    if (n === null) {
+      out.warnings.push('Strickler–Berg needs a refractive index: give refractive_index or solvent');
+      return out;
+    }
+    const absorption = parseSpectrumText(inputs.absorption!.text, {
+      source: refText(s.absorption),
+      kind: 'absorption',
+      column: s.absorption.column,
+    });
+    const emission = parseSpectrumText(inputs.emission!.text, {
+      source: refText(s.emission),
+      kind: 'emission',
+      column: s.emission.column,
+    });
+    const tauNs =
+      out.rates?.tauNs ?? (fit.components.length === 1 ? fit.components[0].tauNs : fit.tauAmpAvgNs);
+    out.sb = stricklerBerg({ absorption, emission, refractiveIndex: n, qy: s.qy ?? undefined, tauNs });
+  }
+  return out;
+}
+
+function assemble(
+  s: SampleSettings,
+  inputs: SampleInputs,
+  fit: FitResult,
+  ctx: RunContext,
+  global?: GlobalGroupResult,
+): SampleResult {
+  const physics = physicsOf(s, inputs, fit);
+  const result: SampleResult = {
+    schemaVersion: SCHEMA_VERSION,
+    sample: s.sample,
+    manifestRow: s.manifestRow,
+    status: 'ok',
+    metadata: s.metadata,
+    fit,
+    warnings: physics.warnings,
+    provenance: provenanceOf(s, inputHashes(s, inputs), ctx),
+  };
+  if (s.group) result.group = s.group;
+  if (global) result.global = global;
+  if (physics.rates) result.rates = physics.rates;
+  if (physics.sb) result.sb = physics.sb;
+  return result;
+}
+
+/**
+ * Runs one sample: parse its files, fit the decay, then rates and Strickler–Berg when their inputs are
+ * there. Pure: the caller reads the files and hashes them. Throws on a sample that cannot be fitted;
+ * `failedSample` turns that into a reported result.
+ */
+export function runSample(
+  s: SampleSettings,
+  inputs: SampleInputs,
+  ctx: RunContext,
+  cache?: HistogramCache,
+): SampleResult {
+  const { decay, irf } = sampleHistograms(s, inputs, cache);
+  const fit = fitDecay(decay, irf, s.fit);
+  return assemble(s, inputs, fit, ctx);
+}
+
+/** The fit options a group shares; members must agree on everything but the fit range and fixes. */
+export function groupFitOptions(members: SampleSettings[]): FitOptions & { components: number } {
+  const first = members[0];
+  const components = first.fit.components ?? 1;
+  if (components === 'auto') {
+    throw new InputError(
+      `group '${first.group}': linked lifetimes need a fixed number of components, not auto`,
+    );
+  }
+  for (const m of members) {
+    for (const key of ['components', 'statistic', 'periodNs', 'irfMode', 'scatter'] as const) {
+      if (JSON.stringify(m.fit[key]) !== JSON.stringify(first.fit[key])) {
+        throw new InputError(
+          `group '${first.group}': sample '${m.sample}' has ${key} ${JSON.stringify(m.fit[key])} but '${first.sample}' has ${JSON.stringify(first.fit[key])}; members of a group are fitted together and must agree`,
+        );
+      }
+    }
+  }
+  return { ...first.fit, components };
+}
+
+/**
+ * Runs a group of samples with linked lifetimes (one global fit by variable projection); each member
+ * gets its own fit object (its amplitudes, shift, background and statistics) and the group's result.
+ * The whole group fails together: a member that cannot be read makes the linked fit meaningless.
+ */
+export function runGroup(
+  members: { settings: SampleSettings; inputs: SampleInputs }[],
+  ctx: RunContext,
+  cache?: HistogramCache,
+): SampleResult[] {
+  const options = groupFitOptions(members.map((m) => m.settings));
+  const data = members.map((m) => ({
+    sample: m.settings.sample,
+    ...sampleHistograms(m.settings, m.inputs, cache),
+  }));
+  const { global, members: fits } = fitGlobal(data, options, {
+    group: members[0].settings.group ?? undefined,
+  });
+  return members.map((m, k) => assemble(m.settings, m.inputs, fits[k], ctx, global));
+}
+
+/** The result of a sample that could not be run, with its error and whatever provenance is known. */
+export function failedSample(
+  base: { sample: string; manifestRow: number; metadata: Record<string, string>; group?: string | null },
+  error: unknown,
+  ctx: RunContext,
+  settings?: SampleSettings,
+  inputs?: Partial<SampleInputs>,
+): SampleResult {
+  const message = error instanceof Error ? error.message : String(error);
+  const result: SampleResult = {
+    schemaVersion: SCHEMA_VERSION,
+    sample: base.sample,
+    manifestRow: base.manifestRow,
+    status: 'failed',
+    error: message,
+    metadata: base.metadata,
+    warnings: [],
+    provenance: settings
+      ? provenanceOf(settings, inputHashes(settings, inputs ?? {}), ctx)
+      : {
+          lumirateVersion: ctx.lumirateVersion,
+          schemaVersion: SCHEMA_VERSION,
+          inputs: [],
+          settings: {},
+          timeUtc: ctx.timeUtc,
+          seed: null,
+        },
+  };
+  if (base.group) result.group = base.group;
+  return result;
+}

@@ -1,0 +1,110 @@
+import { describe, expect, it } from 'vitest';
+import { sha256Hex } from '../../src/batch/hash.js';
+import { parseManifest } from '../../src/batch/manifest.js';
+import { failedSample, runGroup, runSample, type SampleInputs } from '../../src/batch/runSample.js';
+import { EMPTY_SETTINGS, resolveSampleSettings } from '../../src/batch/settings.js';
+import { formatHistogramTable } from '../../src/io/writeTable.js';
+import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+
+const ctx = { lumirateVersion: '0.0.0-test', timeUtc: '2026-01-01T00:00:00.000Z' };
+
+/** Decays sharing τ = 1 and 4 ns (truth set here) with different intensity fractions, and their IRF. */
+function simulatedGroup(fractions: number[]): { texts: string[]; irfText: string } {
+  let irfText = '';
+  const texts = fractions.map((f, k) => {
+    const sim = simulateTcspc({
+      components: [
+        { tauNs: 1, fraction: f },
+        { tauNs: 4, fraction: 1 - f },
+      ],
+      totalCounts: 1e5,
+      channels: 1024,
+      binWidthNs: 0.05,
+      irf: { kind: 'gaussian', fwhmNs: 0.2, centerNs: 1.5 },
+      backgroundPerChannel: 1,
+      irfCounts: 1e5,
+      seed: 40 + k,
+    });
+    if (!irfText)
+      irfText = formatHistogramTable(
+        { timeNs: sim.irf.timeNs, series: [{ name: 'counts', counts: sim.irf.counts }] },
+        {},
+      );
+    return formatHistogramTable(
+      { timeNs: sim.decay.timeNs, series: [{ name: 'counts', counts: sim.decay.counts }] },
+      {},
+    );
+  });
+  return { texts, irfText };
+}
+
+function file(text: string) {
+  return { text, sha256: sha256Hex(text) };
+}
+
+describe('runGroup', () => {
+  it('linked lifetimes come out tighter than separate fits and still cover the truth', () => {
+    const fractions = [0.3, 0.5, 0.7];
+    const { texts, irfText } = simulatedGroup(fractions);
+    const csv = [
+      'sample,decay,irf,components,group',
+      ...fractions.map((_, k) => `m${k},m${k}.csv,irf.csv,2,g`),
+    ].join('\n');
+    const manifest = parseManifest(csv, { source: 'm.csv' });
+    const members = manifest.rows.map((row, k) => ({
+      settings: resolveSampleSettings(row, EMPTY_SETTINGS, 'm.csv'),
+      inputs: { decay: file(texts[k]), irf: file(irfText) } as SampleInputs,
+    }));
+    const linked = runGroup(members, ctx);
+    const separate = members.map((m) => runSample({ ...m.settings, group: null }, m.inputs, ctx));
+    const truth = [1, 4];
+    for (const r of linked) {
+      expect(r.status).toBe('ok');
+      expect(r.group).toBe('g');
+      expect(r.global!.members).toEqual(['m0', 'm1', 'm2']);
+    }
+    const g = linked[0].global!;
+    g.components.forEach((c, j) => {
+      expect(Math.abs(c.tauNs - truth[j])).toBeLessThan(3 * c.tauErrNs);
+      // Each member alone determines τ_j less well than the three together.
+      for (const s of separate) expect(c.tauErrNs).toBeLessThan(s.fit!.components[j].tauErrNs);
+    });
+    // Each member keeps its own amplitudes: the fractions follow the simulated ones.
+    linked.forEach((r, k) =>
+      expect(Math.abs(r.fit!.components[0].intensityFraction - fractions[k])).toBeLessThan(0.05),
+    );
+  });
+
+  it('refuses members that disagree on the model, naming both', () => {
+    const csv = 'sample,decay,components,group\na,a.csv,2,g\nb,b.csv,3,g\n';
+    const m = parseManifest(csv, { source: 'm.csv' });
+    const members = m.rows.map((row) => ({
+      settings: resolveSampleSettings(row, EMPTY_SETTINGS, 'm.csv'),
+      inputs: { decay: file('') } as SampleInputs,
+    }));
+    expect(() => runGroup(members, ctx)).toThrow(
+      "group 'g': sample 'b' has components 3 but 'a' has 2; members of a group are fitted together and must agree",
+    );
+  });
+});
+
+describe('runSample', () => {
+  it('a garbage decay throws an error naming the file, which failedSample turns into a reported result', () => {
+    const m = parseManifest('sample,decay\nx,junk.csv\n', { source: 'm.csv' });
+    const s = resolveSampleSettings(m.rows[0], EMPTY_SETTINGS, 'm.csv');
+    const inputs = { decay: file('hello\nworld, again, more\n') };
+    let err: unknown;
+    try {
+      runSample(s, inputs, ctx);
+    } catch (e) {
+      err = e;
+    }
+    expect(String(err)).toMatch(/junk\.csv/);
+    const r = failedSample(s, err, ctx, s, inputs);
+    expect(r.status).toBe('failed');
+    expect(r.error).toMatch(/^junk\.csv/);
+    expect(r.provenance.inputs).toEqual([
+      { role: 'decay', path: 'junk.csv', sha256: sha256Hex('hello\nworld, again, more\n') },
+    ]);
+  });
+});

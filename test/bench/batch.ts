@@ -1,0 +1,129 @@
+/**
+ * Batch throughput: 1000 two-exponential decays of 4096 channels through the built CLI
+ * (`node dist/cli/main.js batch`), with 1 and with 2 worker threads. Prints wall time, decays per
+ * second, peak resident memory and the speed-up. Goal on a 2-core machine: ≤ 3 s wall and ≤ 300 MB
+ * peak resident memory with 2 workers. Figures only; nothing here passes or fails on time.
+ *
+ * Data: the simulator's expected histogram for τ = 1.0 and 4.0 ns (intensity fractions 0.4/0.6),
+ * Gaussian IRF (FWHM 0.15 ns), 0.0122 ns channels, ~10⁴ counts in the peak, background 5 per
+ * channel; each decay is an independent Poisson draw per channel from it (the statistics of a
+ * photon-counting histogram), which is far quicker than tracing 10⁹ photons one by one. One measured
+ * IRF file is shared by every row, as in a real session.
+ *
+ * Peak memory: the CLI runs its workers as threads of one process, so the process's VmHWM (peak
+ * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all.
+ */
+import { spawn } from 'node:child_process';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { formatHistogramTable } from '../../src/io/writeTable.js';
+import { createRng } from '../../src/sim/rng.js';
+import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+
+const N = Number(process.env.BENCH_BATCH_N ?? 1000);
+const root = join(import.meta.dirname, '..', '..');
+const cli = join(root, 'dist', 'cli', 'main.js');
+if (!existsSync(cli)) {
+  console.error('dist/cli/main.js is missing: run `npm run build` first (npm run bench does).');
+  process.exit(1);
+}
+
+const dir = mkdtempSync(join(tmpdir(), 'lumirate-bench-batch-'));
+try {
+  const t0 = performance.now();
+  const sim = simulateTcspc({
+    components: [
+      { tauNs: 1.0, fraction: 0.4 },
+      { tauNs: 4.0, fraction: 0.6 },
+    ],
+    fractionKind: 'intensity',
+    peakCounts: 1e4,
+    channels: 4096,
+    binWidthNs: 0.0122,
+    irf: { kind: 'gaussian', fwhmNs: 0.15, centerNs: 2 },
+    backgroundPerChannel: 5,
+    irfCounts: 1e5,
+    seed: 20261202,
+  });
+  const timeNs = sim.decay.timeNs;
+  writeFileSync(
+    join(dir, 'irf.csv'),
+    formatHistogramTable({ timeNs, series: [{ name: 'counts', counts: sim.irf.counts }] }, {}),
+  );
+  const data = join(dir, 'decays');
+  mkdirSync(data);
+  const rng = createRng(1);
+  const rows = ['sample,decay,irf,components'];
+  const counts = new Float64Array(timeNs.length);
+  for (let i = 0; i < N; i++) {
+    for (let k = 0; k < counts.length; k++) counts[k] = rng.poisson(sim.expected[k]);
+    const name = `d${String(i).padStart(4, '0')}.csv`;
+    writeFileSync(
+      join(data, name),
+      formatHistogramTable({ timeNs, series: [{ name: 'counts', counts }] }, {}),
+    );
+    rows.push(`s${i},decays/${name},irf.csv,2`);
+  }
+  writeFileSync(join(dir, 'manifest.csv'), rows.join('\n') + '\n');
+  console.log(`generated ${N} decays of 4096 channels in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+
+  interface Run {
+    wallS: number;
+    peakMb: number;
+    code: number | null;
+    ok: number;
+  }
+  const runOnce = (jobs: number, extra: string[]): Promise<Run> =>
+    new Promise((resolve) => {
+      const out = join(dir, `out-${jobs}-${extra.join('')}`);
+      const start = performance.now();
+      const child = spawn(
+        process.execPath,
+        [cli, 'batch', join(dir, 'manifest.csv'), '--out', out, '--jobs', String(jobs), '--quiet', ...extra],
+        {
+          stdio: ['ignore', 'ignore', 'pipe'],
+        },
+      );
+      let stderr = '';
+      child.stderr.on('data', (d) => (stderr += d));
+      let peakKb = 0;
+      const poll = setInterval(() => {
+        try {
+          const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${child.pid}/status`, 'utf8'));
+          if (m) peakKb = Math.max(peakKb, Number(m[1]));
+        } catch {
+          // the process has just ended
+        }
+      }, 10);
+      child.on('exit', (code) => {
+        const wallS = (performance.now() - start) / 1000;
+        clearInterval(poll);
+        const m = /batch: (\d+) ok/.exec(stderr);
+        if (code !== 0) process.stderr.write(stderr.split('\n').slice(0, 5).join('\n') + '\n');
+        rmSync(out, { recursive: true, force: true });
+        resolve({ wallS, peakMb: peakKb / 1024, code, ok: m ? Number(m[1]) : 0 });
+      });
+    });
+
+  const variants: { label: string; extra: string[] }[] = [
+    { label: 'all outputs (curves in results.json, report.html)', extra: [] },
+    { label: 'tables only (--no-curves --no-report)', extra: ['--no-curves', '--no-report'] },
+  ];
+  for (const v of variants) {
+    console.log(`\n${v.label}`);
+    const results: Record<number, Run> = {};
+    for (const jobs of [1, 2]) {
+      const r = await runOnce(jobs, v.extra);
+      results[jobs] = r;
+      console.log(
+        `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall, ${(N / r.wallS).toFixed(0)} decays/s, peak RSS ${r.peakMb.toFixed(0)} MB, ${r.ok}/${N} ok, exit ${r.code}`,
+      );
+    }
+    console.log(
+      `  speed-up 1 → 2 workers: ${(results[1].wallS / results[2].wallS).toFixed(2)}×   (goal: ≤ 3 s and ≤ 300 MB with 2)`,
+    );
+  }
+} finally {
+  rmSync(dir, { recursive: true, force: true });
+}
