@@ -455,7 +455,8 @@ export function stricklerBerg(input: StricklerBergInput): StricklerBergResult {
       emWhere,
     );
   }
-  if (fMin < -0.02 * fMax) {
+  // Negative values within the noise are baseline noise (the importer reports them); deeper ones are not.
+  if (fMin < -Math.max(5 * noiseSigma(em.y), 0.02 * fMax)) {
     warnings.push(
       `The emission spectrum has values down to ${Math.round((100 * fMin) / fMax)} % of its maximum: check the background subtraction.`,
     );

@@ -1,73 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { SCHEMA_VERSION, type ComponentResult, type FitResult } from '../../shared/schema.js';
 import { InputError } from '../../src/errors.js';
 import { computeRates, ratesFromFit } from '../../src/physics/rates.js';
 import { Rng } from '../../src/sim/rng.js';
+import { fitResultWith } from './fitFixture.js';
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
-/** A fit result as the fitter would report it, with only the fields the rates use filled meaningfully. */
-function fitWith(
-  components: { tauNs: number; tauErrNs: number; amplitude: number }[],
-  tauAmpAvgErrNs = 0,
-): FitResult {
-  const sumA = components.reduce((s, c) => s + c.amplitude, 0);
-  const sumAT = components.reduce((s, c) => s + c.amplitude * c.tauNs, 0);
-  const comps: ComponentResult[] = components.map((c) => ({
-    ...c,
-    amplitudeErr: 0,
-    intensityFraction: (c.amplitude * c.tauNs) / sumAT,
-    intensityFractionErr: 0,
-    amplitudeFraction: c.amplitude / sumA,
-  }));
-  return {
-    schemaVersion: SCHEMA_VERSION,
-    statistic: 'poisson',
-    nComponents: comps.length,
-    components: comps,
-    tauAmpAvgNs: sumAT / sumA,
-    tauAmpAvgErrNs,
-    tauIntAvgNs: components.reduce((s, c) => s + c.amplitude * c.tauNs ** 2, 0) / sumAT,
-    tauIntAvgErrNs: 0,
-    shiftNs: 0,
-    shiftErrNs: 0,
-    background: 0,
-    backgroundErr: 0,
-    scatter: 0,
-    scatterErr: 0,
-    chi2Reduced: 1,
-    chi2: 100,
-    deviance: 100,
-    deviancePerDof: 1,
-    dof: 100,
-    durbinWatson: 2,
-    runsZ: 0,
-    runsPValue: 1,
-    aic: 0,
-    bic: 0,
-    converged: true,
-    stop: 'converged',
-    iterations: 10,
-    warnings: [],
-    irfMode: 'measured',
-    rangeNs: [0, 50],
-    periodNs: null,
-    binWidthNs: 0.05,
-    peakCounts: 1e4,
-    totalCounts: 1e6,
-    fixed: {},
-    curves: {
-      timeNs: [],
-      data: [],
-      model: [],
-      irf: [],
-      weightedResiduals: [],
-      autocorrelation: [],
-      fitStartIndex: 0,
-      fitEndIndex: 0,
-    },
-  };
-}
+const fitWith = fitResultWith;
 
 describe('computeRates', () => {
   it('reproduces the worked example Φ = 0.50 ± 0.02, τ = 4.00 ± 0.04 ns', () => {
