@@ -1,12 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import type { FitResult } from '../../shared/schema.js';
-import { SCHEMA_VERSION } from '../../shared/schema.js';
 import type { Histogram } from '../../src/io/types.js';
 import { fitModel } from '../../src/fit/fitModel.js';
 import { degeneracyOf, meritOf, selectComponents, type FitModelFn } from '../../src/fit/selectComponents.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+import { fitResultWith } from '../physics/fitFixture.js';
 
-/** A FitResult with just the numbers model selection reads; the rest are inert. */
+/** A FitResult with just the numbers model selection reads: 1000 fitted channels, 2n + 2 parameters. */
 function stubFit(
   taus: number[],
   deviance: number,
@@ -15,60 +15,24 @@ function stubFit(
   const n = taus.length;
   const nPoints = 1000;
   const k = 2 * n + 2;
+  const base = fitResultWith(
+    taus.map((tauNs, i) => ({ tauNs, tauErrNs: opts.errs?.[i] ?? 0.01 * tauNs, amplitude: 100 })),
+  );
   return {
-    schemaVersion: SCHEMA_VERSION,
-    statistic: 'poisson',
-    nComponents: n,
-    components: taus.map((tauNs, i) => ({
-      tauNs,
-      tauErrNs: opts.errs?.[i] ?? 0.01 * tauNs,
-      amplitude: 100,
-      amplitudeErr: 1,
+    ...base,
+    components: base.components.map((c, i) => ({
+      ...c,
       intensityFraction: opts.fractions?.[i] ?? 1 / n,
-      intensityFractionErr: 0.01,
       amplitudeFraction: opts.fractions?.[i] ?? 1 / n,
     })),
-    tauAmpAvgNs: 1,
-    tauAmpAvgErrNs: 0,
-    tauIntAvgNs: 1,
-    tauIntAvgErrNs: 0,
-    shiftNs: 0,
-    shiftErrNs: 0,
-    background: 0,
-    backgroundErr: 0,
-    scatter: 0,
-    scatterErr: 0,
     chi2Reduced: deviance / (nPoints - k),
     chi2: deviance,
     deviance,
     deviancePerDof: deviance / (nPoints - k),
     dof: nPoints - k,
-    durbinWatson: 2,
-    runsZ: 0,
-    runsPValue: 1,
     aic: deviance + 2 * k,
     bic: deviance + k * Math.log(nPoints),
-    converged: true,
-    stop: 'converged',
-    iterations: 10,
-    warnings: [],
-    irfMode: 'measured',
-    rangeNs: [0, 25],
-    periodNs: null,
-    binWidthNs: 0.025,
-    peakCounts: 1e4,
-    totalCounts: 1e6,
-    fixed: {},
-    curves: {
-      timeNs: [],
-      data: [],
-      model: [],
-      irf: [],
-      weightedResiduals: [],
-      autocorrelation: [],
-      fitStartIndex: 0,
-      fitEndIndex: 999,
-    },
+    curves: { ...base.curves, fitStartIndex: 0, fitEndIndex: nPoints - 1 },
   };
 }
 
