@@ -23,10 +23,10 @@
 import type { FitResult, GlobalGroupResult } from '../../shared/schema.js';
 import { ComputationError, InputError } from '../errors.js';
 import type { Histogram } from '../io/types.js';
-import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
-import { DecayModel } from './decayModel.js';
-import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
+import type { DecayModel } from './decayModel.js';
+import { resolveFitSetup, type FitSetup } from './fitSetup.js';
 import { fitModel as defaultFitModel } from './fitModel.js';
+import { decayModelFor, freeParameters, parameterBounds, parametersFromFit } from './globalBlock.js';
 import { invertSymmetric, levenbergMarquardt, type LmProblem } from './lm.js';
 import type { FitOptions } from './options.js';
 import type { FitModelFn } from './selectComponents.js';
@@ -66,36 +66,6 @@ interface MemberBlock {
   /** Offset of this member's fitted channels in the joint data vector. */
   offset: number;
   nFit: number;
-}
-
-/** Bounds of a member parameter by name, with the fitter's defaults (see FitOptions.bounds). */
-function memberBounds(setup: FitSetup, name: string): [number, number] {
-  const b = setup.bounds[name] ?? {};
-  const window = setup.channels * setup.binWidthNs;
-  if (name.startsWith('amplitude'))
-    return setup.allowNegativeAmplitudes ? [-Infinity, Infinity] : [0, Infinity];
-  if (name === 'background' || name === 'scatter') return [b.min ?? 0, b.max ?? Infinity];
-  if (name === 'shiftNs') return [b.min ?? -SHIFT_MAX_NS, b.max ?? SHIFT_MAX_NS];
-  if (name === 'irfCenterNs') return [b.min ?? setup.firstEdgeNs, b.max ?? setup.firstEdgeNs + window];
-  if (name === 'irfFwhmNs') {
-    return [(b.min ?? setup.binWidthNs / 4) / FWHM_PER_SIGMA, (b.max ?? window / 4) / FWHM_PER_SIGMA];
-  }
-  return [-Infinity, Infinity];
-}
-
-/** A member's parameter vector at the optimum of a fit with the lifetimes held fixed. */
-function memberStart(model: DecayModel, fit: FitResult, lnTau: Float64Array): Float64Array {
-  const L = model.layout;
-  const all = new Float64Array(L.count);
-  for (let j = 0; j < lnTau.length; j++) all[L.lnTau[j]] = lnTau[j];
-  // With lifetimes fixed by name the fitter lists components in name order.
-  fit.components.forEach((c, j) => (all[L.amplitude[j]] = c.amplitude));
-  all[L.background] = fit.background;
-  if (L.scatter >= 0) all[L.scatter] = fit.scatter;
-  if (L.shift >= 0) all[L.shift] = fit.shiftNs;
-  if (L.irfCenter >= 0) all[L.irfCenter] = fit.irfCenterNs ?? NaN;
-  if (L.irfSigma >= 0) all[L.irfSigma] = (fit.irfFwhmNs ?? NaN) / FWHM_PER_SIGMA;
-  return all;
 }
 
 /**
@@ -168,36 +138,21 @@ export function fitGlobal(
   const upper: number[] = [];
   const start: number[] = [];
   for (const j of freeTau) {
-    lower.push(Math.log(options.bounds?.[tauNames[j]]?.min ?? TAU_MIN_NS));
-    upper.push(Math.log(options.bounds?.[tauNames[j]]?.max ?? TAU_MAX_NS));
+    // Lifetime bounds come from the shared options, the same in every member's setup.
+    const [lo, hi] = parameterBounds(setups[0], tauNames[j]);
+    lower.push(lo);
+    upper.push(hi);
     start.push(lnTau0[j]);
   }
   let offset = 0;
   const blocks: MemberBlock[] = setups.map((setup, k) => {
-    let totalInRange = 0;
-    for (let i = setup.fitStart; i < setup.fitEnd; i++) totalInRange += setup.counts[i];
-    const model = new DecayModel({
-      mode: setup.mode,
-      nComponents: nComp,
-      channels: setup.channels,
-      binWidthNs: setup.binWidthNs,
-      firstEdgeNs: setup.firstEdgeNs,
-      periodNs: setup.periodNs,
-      irf: setup.irf,
-      scatter: setup.scatter,
-      scatterScale: Math.max(totalInRange, 1),
-      fitStart: setup.fitStart,
-      fitEnd: setup.fitEnd,
-      tailStart: setup.tailStart,
-    });
+    const model = decayModelFor(setup);
     const L = model.layout;
-    const all = memberStart(model, projected[k], lnTau0);
+    // The projected fit held the lifetimes by name, so its components are in parameter order.
+    const all = parametersFromFit(model, projected[k]);
     const links: [number, number][] = freeTau.map((j, a) => [a, L.lnTau[j]]);
-    for (let p = 0; p < L.count; p++) {
-      const name = L.names[p];
-      if (L.lnTau.includes(p)) continue;
-      if (setup.fix[name] !== undefined) continue;
-      const [lo, hi] = memberBounds(setup, name);
+    for (const p of freeParameters(setup, model, false)) {
+      const [lo, hi] = parameterBounds(setup, L.names[p]);
       links.push([start.length, p]);
       lower.push(lo);
       upper.push(hi);
