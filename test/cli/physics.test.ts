@@ -194,6 +194,31 @@ describe('lumirate sb', () => {
     expect(j.bandChoice).toMatch(/automatic/);
   });
 
+  it('reads absorbance with concentration and path length (Beer–Lambert) and gives the same rate', () => {
+    // A = ε·c·l with c = 1e-5 M and l = 1 cm; the importer turns it back into ε (Beer–Lambert, common practice).
+    const eps = (nu: number) => 5e4 * Math.exp(-((nu - 20000) ** 2) / (2 * 1000 ** 2));
+    const lines = ['wavelength_nm,absorbance'];
+    for (let l = 300; l <= 1200; l++) lines.push(`${l},${(eps(1e7 / l) * 1e-5).toPrecision(15)}`);
+    writeFileSync(at('absorbance.csv'), lines.join('\n') + '\n');
+    const f = writeSpectra();
+    const r = lumirate(
+      'sb',
+      '--absorption',
+      at('absorbance.csv'),
+      '--emission',
+      f.emission,
+      '--n',
+      '1.3611',
+      '--concentration-m',
+      '1e-5',
+      '--path-length-cm',
+      '1',
+      '--json',
+    );
+    expect(r.code).toBe(0);
+    expect(rel(JSON.parse(r.stdout).krSbPerS, 2.09271e8)).toBeLessThan(1e-3); // REFERENCE-VALUES §6 (VERIFIED)
+  });
+
   it('refuses an unknown solvent, listing the known ones', () => {
     const f = writeSpectra();
     const r = lumirate(

@@ -84,7 +84,7 @@ describe('two standards cross-check each other', () => {
   it('measures rhodamine 6G against fluorescein and lands within their stated uncertainties', () => {
     // Worked example, readings invented for the test: fluorescein A = 0.045, F = 1.000e7; rhodamine 6G A = 0.040,
     // F = 8.80e6. Φ = 0.925·0.88·(1 − 10^−0.045)/(1 − 10^−0.040)·(1.3611/1.3330)² = 0.949374 (arithmetic checked
-    // in Python).
+    // in Python; REFERENCE-VALUES §13).
     const r = relativeQuantumYield({
       sample: { integratedEmission: 8.8e6, absorbance: 0.04, refractiveIndex: nEthanol },
       reference: {
@@ -138,7 +138,7 @@ describe('two standards cross-check each other', () => {
 });
 
 describe('leastSquaresSlope', () => {
-  // x = 1…5, y = (2.1, 3.9, 6.2, 7.8, 10.1); numpy 2.4: polyfit(x, y, 1) → slope 1.99 ± 0.0597216, intercept
+  // x = 1…5, y = (2.1, 3.9, 6.2, 7.8, 10.1); REFERENCE-VALUES §13 (VERIFIED, numpy 2.4): polyfit(x, y, 1) → slope 1.99 ± 0.0597216, intercept
   // 0.05 ± 0.198074; lstsq through the origin → 2.0036364 ± 0.0222866 (errors from the residual variance).
   const x = [1, 2, 3, 4, 5];
   const y = [2.1, 3.9, 6.2, 7.8, 10.1];

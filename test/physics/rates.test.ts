@@ -27,7 +27,7 @@ describe('computeRates', () => {
     // Φ = 0.925 ± 0.015 and τ ≈ 4.1 ns (Magde, Wong & Seybold, Photochem. Photobiol. 75, 327 (2002);
     // FROM MEMORY, REFERENCE-VALUES §8 and §9). The lifetime error 0.05 ns is an assumed lab value.
     // Arithmetic by hand: k_r = 0.925/4.1e-9 = 2.25610e8 s⁻¹, k_nr = 0.075/4.1e-9 = 1.82927e7 s⁻¹,
-    // σ(k_nr) = sqrt((0.015/4.1e-9)² + (0.075·0.05e-9/(4.1e-9)²)²) = 3.66533e6 s⁻¹ (arithmetic checked in Python).
+    // σ(k_nr) = sqrt((0.015/4.1e-9)² + (0.075·0.05e-9/(4.1e-9)²)²) = 3.66533e6 s⁻¹ (REFERENCE-VALUES §13, arithmetic VERIFIED in Python).
     const r = computeRates({ qy: 0.925, qyErr: 0.015, tauNs: 4.1, tauErrNs: 0.05 });
     expect(rel(r.krPerS, 2.2561e8)).toBeLessThan(1e-5);
     expect(rel(r.knrPerS, 1.82927e7)).toBeLessThan(1e-5);
