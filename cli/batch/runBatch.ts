@@ -16,7 +16,8 @@ import {
   type SeriesRequest,
 } from '../../src/batch/settings.js';
 import { shardOf, type Shard } from '../../src/batch/shard.js';
-import { InputError, type InputLocation } from '../../src/errors.js';
+import type { InputLocation } from '../../src/errors.js';
+import { readTextFile } from '../readInput.js';
 import { packageVersion } from '../version.js';
 import { Journal, readJournal } from './journal.js';
 import { siblingModule, WorkerPool } from './pool.js';
@@ -65,17 +66,6 @@ export interface BatchSummary {
 }
 
 export const JOURNAL_NAME = '.journal.ndjson';
-
-function readText(path: string, what: string): string {
-  try {
-    return readFileSync(path, 'utf8');
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(`${what} ${code === 'ENOENT' ? 'not found' : `cannot be read (${code})`}`, {
-      file: path,
-    });
-  }
-}
 
 /** Where a file role of a sample was named: its manifest cell when filled, else the settings key. */
 function whereNamed(
@@ -141,9 +131,9 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   const version = packageVersion();
   const manifestPath = options.manifestPath;
   const manifestDir = dirname(resolve(manifestPath));
-  const manifest = parseManifest(readText(manifestPath, 'manifest'), { source: manifestPath });
+  const manifest = parseManifest(readTextFile(manifestPath), { source: manifestPath });
   const settings = options.settingsPath
-    ? parseSettings(readText(options.settingsPath, 'settings file'), { source: options.settingsPath })
+    ? parseSettings(readTextFile(options.settingsPath), { source: options.settingsPath })
     : EMPTY_SETTINGS;
   const startedUtc = new Date().toISOString();
   const ctx: RunContext = { lumirateVersion: version, timeUtc: startedUtc };

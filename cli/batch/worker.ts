@@ -17,6 +17,7 @@ import {
   type SampleInputs,
 } from '../../src/batch/runSample.js';
 import { InputError } from '../../src/errors.js';
+import { decodeText } from '../../src/io/decodeText.js';
 import {
   briefOf,
   type FileToRead,
@@ -45,7 +46,7 @@ function readInput(f: FileToRead): InputFile {
             : `cannot be read (${code ?? String(err)})`;
     throw new InputError(`${f.role} file '${f.written}' ${why}`, f.where);
   }
-  return { text: bytes.toString('utf8'), sha256: sha256Hex(bytes) };
+  return { text: decodeText(bytes, f.written), sha256: sha256Hex(bytes) };
 }
 
 function readInputs(m: MemberTask): SampleInputs {

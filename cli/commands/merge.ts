@@ -1,30 +1,17 @@
-import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Command } from 'commander';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { mergeResults, parseResultsJson } from '../../src/batch/merge.js';
 import { runSeries } from '../../src/batch/series.js';
 import { parseSettings } from '../../src/batch/settings.js';
-import { InputError } from '../../src/errors.js';
 import { seriesOptions } from '../batch/runBatch.js';
 import { reportWriter } from '../batch/report.js';
 import { briefOf } from '../batch/protocol.js';
 import { removeStaleTemporaries, writeBatchOutputs } from '../batch/writeOutputs.js';
 import { mkdirSync } from 'node:fs';
 import { EXIT } from '../exitCodes.js';
+import { readTextFile } from '../readInput.js';
 import { action, ExitWith } from '../run.js';
-
-function readText(path: string): string {
-  try {
-    return readFileSync(path, 'utf8');
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(
-      code === 'ENOENT' ? 'not found; is this a batch output directory?' : `cannot be read (${code})`,
-      { file: path },
-    );
-  }
-}
 
 export function register(program: Command): void {
   program
@@ -41,13 +28,13 @@ export function register(program: Command): void {
       action((dirs: string[], opts: { out: string; settings?: string; report: boolean }) => {
         const parts = dirs.map((dir) => {
           const path = join(dir, 'results.json');
-          return { source: path, results: parseResultsJson(readText(path), path) };
+          return { source: path, results: parseResultsJson(readTextFile(path), path) };
         });
         const merged: SampleResult[] = mergeResults(parts);
         const series: SeriesResult[] = [];
         const problems: string[] = [];
         if (opts.settings) {
-          const settings = parseSettings(readText(opts.settings), { source: opts.settings });
+          const settings = parseSettings(readTextFile(opts.settings), { source: opts.settings });
           for (const req of settings.series) {
             try {
               series.push(runSeries(merged.map(briefOf), seriesOptions(req)));

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { type Command, Option } from 'commander';
 import { formatNumber, formatValueError } from '../../shared/format.js';
@@ -7,6 +7,7 @@ import { parseResultsJson } from '../../src/batch/merge.js';
 import { runSeries } from '../../src/batch/series.js';
 import { InputError } from '../../src/errors.js';
 import { writeFileAtomic } from '../batch/atomicWrite.js';
+import { readTextFile } from '../readInput.js';
 import { action } from '../run.js';
 
 interface SeriesCliOptions {
@@ -79,13 +80,7 @@ export function register(program: Command): void {
     .action(
       action((resultsArg: string, opts: SeriesCliOptions) => {
         const path = resultsPathOf(resultsArg);
-        let text: string;
-        try {
-          text = readFileSync(path, 'utf8');
-        } catch (err) {
-          const code = (err as NodeJS.ErrnoException).code;
-          throw new InputError(code === 'ENOENT' ? 'not found' : `cannot be read (${code})`, { file: path });
-        }
+        const text = readTextFile(path);
         const samples = parseResultsJson(text, path);
         const sr = runSeries(samples, {
           model: opts.model,

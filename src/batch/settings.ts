@@ -4,7 +4,7 @@ import type { FitOptions } from '../fit/options.js';
 import { splitSourceRef } from '../io/sourceRef.js';
 import type { Cell } from './csvCells.js';
 import { firstJsonError } from './jsonPositions.js';
-import type { ManifestColumn, ManifestRow } from './manifest.js';
+import { MANIFEST_COLUMNS, type ManifestColumn, type ManifestRow } from './manifest.js';
 
 /** A file named in a manifest or settings file, as written there, split at the last '#'. */
 export interface FileRef {
@@ -152,21 +152,8 @@ export function parseSettings(text: string, options: { source: string }): BatchS
     locations[key] = at >= 0 ? { file: source, ...lineColumnAt(clean, at) } : { file: source };
   }
   const settings: BatchSettings = { defaults: {}, fit: {}, seed: 1, series: [], locations };
-  const known = new Set<string>([
-    'irf',
-    'components',
-    'statistic',
-    'range',
-    'fix',
-    'qy',
-    'qy_err',
-    'solvent',
-    'refractive_index',
-    'absorption',
-    'emission',
-    'period_ns',
-    'group',
-  ]);
+  // Every manifest column but the two that only make sense per row.
+  const known = new Set<string>(MANIFEST_COLUMNS.filter((c) => c !== 'sample' && c !== 'decay'));
   for (const [key, value] of Object.entries(raw as Record<string, unknown>)) {
     const where = locations[key];
     if (known.has(key)) {

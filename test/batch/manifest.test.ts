@@ -1,17 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseCsvCells } from '../../src/batch/csvCells.js';
 import { parseManifest } from '../../src/batch/manifest.js';
-import { InputError } from '../../src/errors.js';
-
-function errorOf(fn: () => unknown): InputError {
-  try {
-    fn();
-  } catch (err) {
-    if (err instanceof InputError) return err;
-    throw err;
-  }
-  throw new Error('expected an InputError');
-}
+import { errorOf } from './errorOf.js';
 
 describe('parseCsvCells', () => {
   it('keeps the line and column of every cell, quoted cells and embedded commas included', () => {

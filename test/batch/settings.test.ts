@@ -7,17 +7,7 @@ import {
   SETTINGS_TEMPLATE,
   stripJsonComments,
 } from '../../src/batch/settings.js';
-import { InputError } from '../../src/errors.js';
-
-function errorOf(fn: () => unknown): InputError {
-  try {
-    fn();
-  } catch (err) {
-    if (err instanceof InputError) return err;
-    throw err;
-  }
-  throw new Error('expected an InputError');
-}
+import { errorOf } from './errorOf.js';
 
 const resolveOne = (csv: string, settingsText?: string) => {
   const m = parseManifest(csv, { source: 'm.csv' });
