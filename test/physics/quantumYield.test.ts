@@ -39,6 +39,35 @@ describe('relativeQuantumYield (single point)', () => {
     const expected = r.qy * Math.hypot(0.0273 / 0.546, 0.01, relF);
     expect(rel(r.qyErr, expected)).toBeLessThan(1e-12);
   });
+  it('propagates errors as a seeded Monte Carlo of the same inputs does', () => {
+    const sigma = { qyR: 0.02, fS: 0.015, fR: 0.015, aS: 0.002, aR: 0.002 };
+    const r = relativeQuantumYield({
+      sample: { ...input.sample, integratedEmissionErr: sigma.fS * 0.8, absorbanceErr: sigma.aS },
+      reference: {
+        ...input.reference,
+        qyErr: sigma.qyR,
+        integratedEmissionErr: sigma.fR,
+        absorbanceErr: sigma.aR,
+      },
+    });
+    const rng = new Rng(5);
+    const N = 100_000;
+    let s = 0;
+    let s2 = 0;
+    const f = (a: number) => 1 - 10 ** -a;
+    for (let i = 0; i < N; i++) {
+      const q =
+        (0.546 + sigma.qyR * rng.normal()) *
+        ((0.8 * (1 + sigma.fS * rng.normal())) / (1 + sigma.fR * rng.normal())) *
+        (f(0.04 + sigma.aR * rng.normal()) / f(0.05 + sigma.aS * rng.normal())) *
+        (1.3611 / 1.333) ** 2;
+      s += q;
+      s2 += q * q;
+    }
+    const sd = Math.sqrt(s2 / N - (s / N) ** 2);
+    // First order versus the sampled spread: agree to a few per cent (the ratio of absorptances is mildly non-linear).
+    expect(rel(r.qyErr, sd)).toBeLessThan(0.03);
+  });
   it('warns above absorbance 0.1 (inner-filter effects; common practice)', () => {
     const r = relativeQuantumYield({ ...input, sample: { ...input.sample, absorbance: 0.15 } });
     expect(r.warnings.join(' ')).toMatch(/sample absorbance 0.15 exceeds 0.1: inner-filter/);

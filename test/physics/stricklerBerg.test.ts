@@ -387,3 +387,60 @@ describe('bad input', () => {
     );
   });
 });
+
+describe('invariants over random Gaussian band pairs (fast-check)', () => {
+  it('gives the same k_r from wavenumber and wavelength grids, and scales linearly with ε', async () => {
+    const fc = await import('fast-check');
+    fc.assert(
+      fc.property(
+        fc.double({ min: 16000, max: 26000, noNaN: true }),
+        fc.double({ min: 600, max: 1500, noNaN: true }),
+        fc.double({ min: 500, max: 4000, noNaN: true }),
+        fc.double({ min: 0.5, max: 1.2, noNaN: true }),
+        (centreCm, widthCm, stokesCm, widthRatio) => {
+          const e = (nu: number) => 2e4 * Math.exp(-((nu - centreCm) ** 2) / (2 * widthCm ** 2));
+          const fw = widthCm * widthRatio;
+          const F = (nu: number) => Math.exp(-((nu - centreCm + stokesCm) ** 2) / (2 * fw ** 2));
+          const nu = grid(5000, 40000, 10);
+          const lam = grid(250, 2000, 0.5);
+          const onNu = stricklerBerg({
+            absorption: spectrum('absorption', 'cm-1', nu, nu.map(e)),
+            emission: spectrum('emission', 'cm-1', nu, nu.map(F)),
+            refractiveIndex: 1.4,
+            bandCm: [5000, 40000],
+          });
+          const onLam = stricklerBerg({
+            absorption: spectrum(
+              'absorption',
+              'nm',
+              lam,
+              lam.map((l) => e(1e7 / l)),
+            ),
+            emission: spectrum(
+              'emission',
+              'nm',
+              lam,
+              lam.map((l) => (F(1e7 / l) * 1e7) / l ** 2),
+            ),
+            refractiveIndex: 1.4,
+            bandCm: [5000, 40000],
+          });
+          expect(rel(onLam.krSbPerS, onNu.krSbPerS)).toBeLessThan(1e-3);
+          const doubled = stricklerBerg({
+            absorption: spectrum(
+              'absorption',
+              'cm-1',
+              nu,
+              nu.map((v) => 2 * e(v)),
+            ),
+            emission: spectrum('emission', 'cm-1', nu, nu.map(F)),
+            refractiveIndex: 1.4,
+            bandCm: [5000, 40000],
+          });
+          expect(rel(doubled.krSbPerS, 2 * onNu.krSbPerS)).toBeLessThan(1e-12);
+        },
+      ),
+      { numRuns: 15, seed: 42 },
+    );
+  });
+});
