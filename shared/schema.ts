@@ -183,6 +183,9 @@ export interface StricklerBergResult {
   /** With a measured Φ and τ. */
   qySb?: number;
   krRatio?: number;
+  /** Uncertainties of qySb and krRatio from the measured Φ and τ alone (k_r^SB's own is not estimated). */
+  qySbErr?: number;
+  krRatioErr?: number;
   note?: string;
   warnings: string[];
 }
