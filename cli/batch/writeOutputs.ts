@@ -58,11 +58,24 @@ export function writeBatchOutputs(
       JSON.stringify({ schemaVersion: SCHEMA_VERSION, series }, null, 2) + '\n',
     );
   else rmSync(join(dir, 'series.json'), { force: true });
-  options.writeReport?.(() => ordered.map((e) => JSON.parse(e.json()) as SampleResult), series);
+  options.writeReport?.(() => lazySamples(ordered), series);
 }
 
 function* resultsJsonChunks(entries: OutputEntry[]): Generator<string> {
   yield '[\n';
   for (let k = 0; k < entries.length; k++) yield (k ? ',\n' : '') + entries[k].json();
   yield '\n]\n';
+}
+
+/**
+ * The samples as an array whose elements are parsed from their JSON text each time they are read and
+ * then dropped: the report reads each sample's curves once, so a batch of thousands never has all its
+ * curves in memory at the same time.
+ */
+export function lazySamples(entries: OutputEntry[]): SampleResult[] {
+  const out: SampleResult[] = new Array(entries.length);
+  entries.forEach((e, k) => {
+    Object.defineProperty(out, k, { enumerable: true, get: () => JSON.parse(e.json()) as SampleResult });
+  });
+  return out;
 }

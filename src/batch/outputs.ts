@@ -195,7 +195,7 @@ export function formatSummaryMarkdown(
     for (const s of failed) out.push(`- ${escapeMd(s.sample)}: ${escapeMd(s.error ?? 'failed')}`);
     out.push('');
   }
-  return out.join('\n');
+  return out.join('\n').trimEnd() + '\n';
 }
 
 function sub(i: number): string {

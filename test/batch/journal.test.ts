@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal, readJournal } from '../../cli/batch/journal.js';
-import { removeStaleTemporaries } from '../../cli/batch/writeOutputs.js';
+import { lazySamples, removeStaleTemporaries } from '../../cli/batch/writeOutputs.js';
 
 const dirs: string[] = [];
 function tempDir(): string {
@@ -80,5 +80,23 @@ describe('writeFileAtomic', () => {
     removeStaleTemporaries(dir);
     expect(readdirSync(dir)).toEqual(['results.json']);
     expect(existsSync(join(dir, 'results.json'))).toBe(true);
+  });
+});
+
+describe('lazySamples', () => {
+  it('parses each sample when it is read and keeps nothing parsed', () => {
+    let reads = 0;
+    const entries = ['a', 'b'].map((id) => ({
+      brief: null as never,
+      json: () => {
+        reads++;
+        return JSON.stringify({ sample: id });
+      },
+    }));
+    const samples = lazySamples(entries);
+    expect(reads).toBe(0);
+    expect(samples.map((s) => s.sample)).toEqual(['a', 'b']);
+    expect(samples[0]).not.toBe(samples[0]);
+    expect(reads).toBe(4);
   });
 });
