@@ -1,5 +1,5 @@
 import type { Command } from 'commander';
-import { formatNumber } from '../../shared/format.js';
+import { formatNumber, formatValueError } from '../../shared/format.js';
 import type { StricklerBergResult } from '../../shared/schema.js';
 import { InputError } from '../../src/errors.js';
 import type { SpectrumAxis } from '../../src/io/types.js';
@@ -19,6 +19,8 @@ interface SbCliOptions {
   bandNm?: string;
   tauNs?: string;
   qy?: string;
+  tauErrNs?: string;
+  qyErr?: string;
   absorptionAxis?: string;
   emissionAxis?: string;
   concentrationM?: string;
@@ -62,10 +64,13 @@ export function formatSbText(r: StricklerBergResult): string {
       ['Einstein A, vacuum (s⁻¹)', formatNumber(r.einsteinAVacuumPerS)],
       ['Einstein A, in the medium (s⁻¹)', formatNumber(r.einsteinAMediumPerS)],
       ...(r.qySb !== undefined
-        ? ([['Φ^SB = k_r^SB·τ', formatNumber(r.qySb, { digits: 3 })]] as [string, string][])
+        ? ([['Φ^SB = k_r^SB·τ', formatValueError(r.qySb, r.qySbErr, { digits: 3 })]] as [string, string][])
         : []),
       ...(r.krRatio !== undefined
-        ? ([['k_r(measured)/k_r^SB', formatNumber(r.krRatio, { digits: 3 })]] as [string, string][])
+        ? ([['k_r(measured)/k_r^SB', formatValueError(r.krRatio, r.krRatioErr, { digits: 3 })]] as [
+            string,
+            string,
+          ][])
         : []),
     ]),
   ];
@@ -99,6 +104,8 @@ export function register(program: Command): void {
     .option('--band-nm <short:long>', 'absorption band to integrate, nm')
     .option('--tau-ns <ns>', 'measured lifetime, ns, to compare with the prediction')
     .option('--qy <fraction>', 'measured quantum yield, to compare with the prediction')
+    .option('--tau-err-ns <ns>', 'standard uncertainty of the measured lifetime, ns')
+    .option('--qy-err <fraction>', 'standard uncertainty of the measured quantum yield')
     .option(
       '--absorption-axis <axis>',
       'axis of the absorption file when its header does not say: nm or cm-1',
@@ -166,6 +173,8 @@ export function register(program: Command): void {
           bandCm,
           qy: numberOption(opts.qy, '--qy'),
           tauNs: numberOption(opts.tauNs, '--tau-ns'),
+          qyErr: numberOption(opts.qyErr, '--qy-err'),
+          tauErrNs: numberOption(opts.tauErrNs, '--tau-err-ns'),
         });
         // What the importer noticed belongs with the result.
         result.warnings.unshift(

@@ -38,6 +38,10 @@ export interface StricklerBergInput {
   qy?: number;
   /** Measured lifetime, ns, for the comparison with the prediction. */
   tauNs?: number;
+  /** Standard uncertainty of the measured Φ. Default: 0. */
+  qyErr?: number;
+  /** Standard uncertainty of the measured τ, ns. Default: 0. */
+  tauErrNs?: number;
   /** Tuning of the automatic band choice. */
   autoBand?: AutoBandOptions;
 }
@@ -335,6 +339,13 @@ export function stricklerBerg(input: StricklerBergInput): StricklerBergResult {
   if (input.tauNs !== undefined && !(Number.isFinite(input.tauNs) && input.tauNs > 0)) {
     throw new InputError(`the lifetime τ = ${input.tauNs} ns must be > 0.`);
   }
+  for (const [what, v] of [
+    ['quantum-yield uncertainty', input.qyErr],
+    ['lifetime uncertainty', input.tauErrNs],
+  ] as const) {
+    if (v !== undefined && !(Number.isFinite(v) && v >= 0))
+      throw new InputError(`the ${what} ${v} must be ≥ 0.`);
+  }
   const warnings: string[] = [];
   const absWhere = { file: spectrumLabel(absorption) };
   const emWhere = { file: spectrumLabel(emission) };
@@ -536,6 +547,8 @@ export function stricklerBerg(input: StricklerBergInput): StricklerBergResult {
   if (input.tauNs !== undefined) {
     const qySb = krSbPerS * input.tauNs * 1e-9;
     result.qySb = qySb;
+    const tauRel = (input.tauErrNs ?? 0) / input.tauNs;
+    if (tauRel > 0) result.qySbErr = qySb * tauRel;
     if (input.qy === undefined) {
       result.note =
         `Without a measured yield, η = k_r^SB·τ = ${qySb.toPrecision(3)} estimates the quantum efficiency, assuming the ` +
@@ -552,6 +565,14 @@ export function stricklerBerg(input: StricklerBergInput): StricklerBergResult {
     const krMeasured = input.qy / (input.tauNs * 1e-9);
     const ratio = krMeasured / krSbPerS;
     result.krRatio = ratio;
+    const ratioRel = Math.hypot((input.qyErr ?? 0) / input.qy, (input.tauErrNs ?? 0) / input.tauNs);
+    if (ratioRel > 0) {
+      result.krRatioErr = ratio * ratioRel;
+      notes.push(
+        'The uncertainties of Φ^SB and of the rate ratio carry only those of the measured Φ and τ; the uncertainty of ' +
+          'k_r^SB itself (ε scale, band limits, refractive index) is not estimated and comes on top.',
+      );
+    }
     result.note = comparisonNote(ratio);
   }
   return result;

@@ -279,6 +279,24 @@ describe('comparison with a measured yield and lifetime', () => {
     expect(r.note).toMatch(/agree within 30 %/);
   });
 
+  it('carries the uncertainties of the measured Φ and τ into the ratio and the predicted yield', () => {
+    const r = stricklerBerg({
+      ...wavenumberPair(),
+      refractiveIndex: 1.3611,
+      qy: 0.9,
+      qyErr: 0.02,
+      tauNs: 4.5,
+      tauErrNs: 0.05,
+    });
+    // Ratio ∝ Φ/τ: relative errors in quadrature; Φ^SB ∝ τ.
+    expect(rel(r.krRatioErr!, r.krRatio! * Math.hypot(0.02 / 0.9, 0.05 / 4.5))).toBeLessThan(1e-12);
+    expect(rel(r.qySbErr!, r.qySb! * (0.05 / 4.5))).toBeLessThan(1e-12);
+    expect(r.notes!.join(' ')).toMatch(/uncertainty of k_r\^SB itself .* is not estimated/);
+    expect(() =>
+      stricklerBerg({ ...wavenumberPair(50), refractiveIndex: 1.36, qy: 0.9, qyErr: -1, tauNs: 4 }),
+    ).toThrow(/≥ 0/);
+  });
+
   it('explains a large mismatch with hedged, plain language', () => {
     const r = stricklerBerg({ ...wavenumberPair(), refractiveIndex: 1.3611, qy: 0.05, tauNs: 4.5 });
     expect(r.krRatio!).toBeLessThan(0.1);
