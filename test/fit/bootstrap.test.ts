@@ -72,6 +72,24 @@ describe('addBootstrap', () => {
     expect(c.components[0].tauBootstrapErrNs).not.toBe(a.components[0].tauBootstrapErrNs);
   });
 
+  it('gets the same spread refitting from the best fit as refitting from scratch', () => {
+    // Same seed ⇒ same replicates; both refits must reach the same optimum of each (one minimum for a
+    // mono-exponential), the quick one without the starting-value search.
+    let fullFits = 0;
+    const counted: FitModelFn = (d, i, o) => (fullFits++, fitModel(d, i, o));
+    const quick = addBootstrap(best, decay, null, OPTS, counted, { replicates: 30, seed: 9 });
+    expect(fullFits).toBe(0);
+    const full = addBootstrap(best, decay, null, OPTS, fitModel, {
+      replicates: 30,
+      seed: 9,
+      refit: 'fullFit',
+    });
+    const [q, f] = [quick.components[0], full.components[0]];
+    expect(Math.abs(q.tauBootstrapErrNs! / f.tauBootstrapErrNs! - 1)).toBeLessThan(1e-4);
+    expect(q.tauBootstrapCi95Ns![0]).toBeCloseTo(f.tauBootstrapCi95Ns![0], 5);
+    expect(q.tauBootstrapCi95Ns![1]).toBeCloseTo(f.tauBootstrapCi95Ns![1], 5);
+  });
+
   it('refits on the same channels from Poisson draws of the model and leaves the inputs alone', () => {
     const seen: Histogram[] = [];
     const spy: FitModelFn = (d, i, o) => {
@@ -82,7 +100,12 @@ describe('addBootstrap', () => {
     };
     const snapshot = JSON.stringify(best);
     const before = Float64Array.from(decay.counts);
-    const r = addBootstrap(best, decay, null, OPTS, spy, { replicates: 3, seed: 1, minSuccessful: 2 });
+    const r = addBootstrap(best, decay, null, OPTS, spy, {
+      replicates: 3,
+      seed: 1,
+      minSuccessful: 2,
+      refit: 'fullFit',
+    });
     expect(seen.length).toBe(3);
     for (const h of seen) {
       expect(h).not.toBe(decay);
@@ -100,7 +123,7 @@ describe('addBootstrap', () => {
       if (call % 4 === 0) throw new Error('no convergence');
       return fitModel(d, i, o);
     };
-    const r = addBootstrap(best, decay, null, OPTS, flaky, { replicates: 20, seed: 2 });
+    const r = addBootstrap(best, decay, null, OPTS, flaky, { replicates: 20, seed: 2, refit: 'fullFit' });
     expect(r.warnings).toContain('bootstrap: 5 of 20 replicates failed to fit and were left out');
     expect(r.components[0].tauBootstrapErrNs).toBeGreaterThan(0);
     const none = addBootstrap(
@@ -111,7 +134,7 @@ describe('addBootstrap', () => {
       () => {
         throw new Error('always');
       },
-      { replicates: 5, seed: 2 },
+      { replicates: 5, seed: 2, refit: 'fullFit' },
     );
     expect(none.components[0].tauBootstrapErrNs).toBeNaN();
     expect(none.warnings).toContain(
