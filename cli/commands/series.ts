@@ -51,7 +51,7 @@ export function formatSeriesText(sr: SeriesResult): string {
   );
   for (const p of sr.points) {
     out.push(
-      `  ${p.sample.padEnd(16)} ${formatNumber(p.x).padStart(12)} ${formatValueError(p.y, p.yErr).padStart(22)} ${(p.fit === null ? '–' : formatNumber(p.fit)).padStart(12)} ${(p.residual === null ? '–' : p.residual.toFixed(2)).padStart(9)}`,
+      `  ${p.sample.padEnd(16)} ${String(p.x).padStart(12)} ${formatValueError(p.y, p.yErr).padStart(22)} ${(p.fit === null ? '–' : formatNumber(p.fit)).padStart(12)} ${(p.residual === null ? '–' : p.residual.toFixed(2)).padStart(9)}`,
     );
   }
   if (sr.notes.length) out.push('', ...sr.notes.map((n) => `  note: ${n}`));
