@@ -63,8 +63,7 @@ export function expectedHistogram(model: ArrivalModel): Float64Array {
   const out = new Float64Array(channels);
   const survival = new Float64Array(channels + 1);
   const pieces = jitterPieces(model.jitter);
-  for (const branch of model.branches) {
-    if (branch.weight === 0) continue;
+  for (const branch of mergeBranches(model.branches)) {
     let hMax = Infinity;
     for (const t of branch.terms) hMax = Math.min(hMax, t.tauNs / 2);
     if (model.jitter.kind === 'gaussian') hMax = Math.min(hMax, model.jitter.sigmaNs / 2);
@@ -81,7 +80,7 @@ export function expectedHistogram(model: ArrivalModel): Float64Array {
           const mid = a + h / 2;
           for (let q = 0; q < 5; q++) {
             const j = mid + (h / 2) * GL_X[q];
-            const w = branch.weight * piece.density(j) * (h / 2) * GL_W[q];
+            const w = piece.density(j) * (h / 2) * GL_W[q];
             if (w === 0) continue;
             filler(j, survival);
             for (let k = 0; k < channels; k++) out[k] += w * (survival[k] - survival[k + 1]);
@@ -94,6 +93,22 @@ export function expectedHistogram(model: ArrivalModel): Float64Array {
   // Quadrature rounding can leave −1e-17 where the truth is 0.
   for (let k = 0; k < channels; k++) if (out[k] < 0) out[k] = 0;
   return out;
+}
+
+/**
+ * Branches with the same offset share their kinks and their pulse counting, and S is linear in them:
+ * one pass with the weights folded into the term coefficients does the work of all of them.
+ */
+function mergeBranches(branches: ArrivalBranch[]): ArrivalBranch[] {
+  const byOffset = new Map<number, ArrivalBranch>();
+  for (const b of branches) {
+    if (b.weight === 0) continue;
+    const merged = byOffset.get(b.offsetNs) ?? { weight: 0, offsetNs: b.offsetNs, terms: [] };
+    merged.weight += b.weight;
+    for (const t of b.terms) merged.terms.push({ ...t, coef: t.coef * b.weight });
+    byOffset.set(b.offsetNs, merged);
+  }
+  return [...byOffset.values()];
 }
 
 interface Piece {
@@ -151,14 +166,16 @@ function kinkPoints(lo: number, hi: number, offsetNs: number, model: ArrivalMode
 
 /**
  * Returns a function that fills S(e_k), k = 0 … channels, for a jitter value j, such that the
- * probability of channel k is S(e_k) − S(e_{k+1}). Single pulse: S(e) = G(e − j − o). Periodic:
- * S(e) = m₁ + Σ_{m ≥ m₁} G(e + mP − j − o), m₁ the first pulse index with a positive argument; the
- * integer counts the pulses whose argument is ≤ 0 (G = 1 there) relative to a fixed origin, and only
- * differences of S are used.
+ * branch's share of channel k is S(e_k) − S(e_{k+1}). Single pulse: S(e) = G(e − j − o). Periodic:
+ * S(e) = w·m₁ + Σ_{m ≥ m₁} G(e + mP − j − o), m₁ the first pulse index with a positive argument; the
+ * integer counts the pulses whose argument is ≤ 0 relative to a fixed origin, and only differences of
+ * S are used. G carries the branch weight w: G = w for a non-positive argument, and the terms'
+ * coefficients include w (see mergeBranches).
  */
 function survivalFiller(branch: ArrivalBranch, model: ArrivalModel): (j: number, out: Float64Array) => void {
   const { channels, binWidthNs, periodNs } = model;
   const terms = branch.terms;
+  const weight = branch.weight;
   const nT = terms.length;
   const invTau = terms.map((t) => 1 / t.tauNs);
   const step = terms.map((t) => Math.exp(-binWidthNs / t.tauNs));
@@ -185,12 +202,12 @@ function survivalFiller(branch: ArrivalBranch, model: ArrivalModel): (j: number,
           x += periodNs;
         }
       } else if (x <= 0) {
-        out[k] = 1;
+        out[k] = weight;
         continue;
       }
       // Successive edges in the same fold differ by one bin: update e^(−x/τ) by a factor.
       const continues = m === prevM && x > prevX;
-      let s = periodNs ? m : 0;
+      let s = periodNs ? weight * m : 0;
       for (let t = 0; t < nT; t++) {
         e[t] = continues ? e[t] * step[t] : Math.exp(-x * invTau[t]);
         const term = terms[t];

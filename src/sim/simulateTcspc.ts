@@ -481,7 +481,8 @@ export function simulateTcspc(options: SimulationOptions): SimulatedMeasurement 
   if (options.totalCounts !== undefined) meanEmitted = options.totalCounts / inWindow;
   else meanEmitted = (options.peakCounts ?? 1e4) / peakShare;
 
-  const irfPerPhoton = expectedHistogram(irfArrivalModel(r));
+  // The IRF measurement's shape is only needed when it has photons.
+  const irfPerPhoton = r.irfCounts > 0 ? expectedHistogram(irfArrivalModel(r)) : new Float64Array(r.channels);
   const irfInWindow = sumOf(irfPerPhoton);
   if (r.irfCounts > 0 && !(irfInWindow > 0))
     fail('no IRF photon can land inside the window: check the IRF position');
