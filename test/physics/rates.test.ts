@@ -6,8 +6,6 @@ import { fitResultWith } from './fitFixture.js';
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
-const fitWith = fitResultWith;
-
 describe('computeRates', () => {
   it('reproduces the worked example Φ = 0.50 ± 0.02, τ = 4.00 ± 0.04 ns', () => {
     // REFERENCE-VALUES §7 (VERIFIED; Monte Carlo with 2e6 draws agrees to 3e-4):
@@ -123,7 +121,7 @@ describe('computeRates', () => {
 
 describe('ratesFromFit', () => {
   it('uses the single lifetime of a mono-exponential fit', () => {
-    const r = ratesFromFit(fitWith([{ tauNs: 4, tauErrNs: 0.04, amplitude: 1000 }]), {
+    const r = ratesFromFit(fitResultWith([{ tauNs: 4, tauErrNs: 0.04, amplitude: 1000 }]), {
       qy: 0.5,
       qyErr: 0.02,
     });
@@ -133,7 +131,7 @@ describe('ratesFromFit', () => {
 
   it('uses the amplitude-weighted average lifetime for a multi-exponential fit and says why', () => {
     // REFERENCE-VALUES §7 (VERIFIED): a = (0.5, 0.5), τ = (1, 4) ns → ⟨τ⟩_a = 2.5 ns, ⟨τ⟩_f = 3.4 ns.
-    const fit = fitWith(
+    const fit = fitResultWith(
       [
         { tauNs: 1, tauErrNs: 0.02, amplitude: 500 },
         { tauNs: 4, tauErrNs: 0.05, amplitude: 500 },
@@ -153,7 +151,7 @@ describe('ratesFromFit', () => {
   it('gives per-component k_nr when a common k_r is asserted', () => {
     // a = (0.8, 0.2), τ = (0.5, 3) ns → ⟨τ⟩_a = 1.0 ns (REFERENCE-VALUES §7, VERIFIED). Φ = 0.1 →
     // k_r = 1e8 s⁻¹; k_nr,1 = 2e9 − 1e8 = 1.9e9, k_nr,2 = 3.3333e8 − 1e8 = 2.3333e8 s⁻¹.
-    const fit = fitWith([
+    const fit = fitResultWith([
       { tauNs: 0.5, tauErrNs: 0.01, amplitude: 800 },
       { tauNs: 3, tauErrNs: 0.03, amplitude: 200 },
     ]);
@@ -168,7 +166,7 @@ describe('ratesFromFit', () => {
   });
 
   it('warns when a component outlives the common radiative lifetime', () => {
-    const fit = fitWith([
+    const fit = fitResultWith([
       { tauNs: 0.5, tauErrNs: 0.01, amplitude: 900 },
       { tauNs: 20, tauErrNs: 0.5, amplitude: 100 },
     ]);
@@ -179,6 +177,6 @@ describe('ratesFromFit', () => {
   });
 
   it('refuses a fit without components', () => {
-    expect(() => ratesFromFit(fitWith([]), { qy: 0.5 })).toThrow(/no decay components/);
+    expect(() => ratesFromFit(fitResultWith([]), { qy: 0.5 })).toThrow(/no decay components/);
   });
 });
