@@ -1,5 +1,5 @@
 import type { IrfMode } from '../../shared/schema.js';
-import { exponentialBasis, shiftIrf, tailBasis } from '../model/reconvolve.js';
+import { exponentialBasis, irfSlopes, shiftIrf, tailBasis } from '../model/reconvolve.js';
 import { emgBasis, gaussianIrfFractions } from '../model/gaussianIrf.js';
 
 /**
@@ -95,6 +95,7 @@ export class DecayModel {
   private readonly full: Float64Array;
   private readonly shiftAcc: Float64Array;
   private readonly work: Float64Array;
+  private readonly slopes: Float64Array | null;
 
   constructor(readonly setup: DecayModelSetup) {
     this.layout = paramLayout(setup.mode, setup.nComponents, setup.scatter);
@@ -108,13 +109,15 @@ export class DecayModel {
     this.full = new Float64Array(n);
     this.shiftAcc = new Float64Array(n);
     this.work = new Float64Array(n);
+    this.slopes = setup.irf ? irfSlopes(setup.irf) : null;
   }
 
   /** IRF shape as used by the model at these parameters (fractions per channel), for display. */
   irfCurve(all: Float64Array): Float64Array {
     const s = this.setup;
     const out = new Float64Array(this.n);
-    if (s.mode === 'measured' && s.irf) shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, out, null);
+    if (s.mode === 'measured' && s.irf)
+      shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, out, null, this.slopes);
     else if (s.mode === 'gaussian')
       gaussianIrfFractions(
         this.n,
@@ -127,11 +130,15 @@ export class DecayModel {
     return out;
   }
 
-  /** Basis curve of one lifetime at the IRF settings in `all` (full axis), into `out`. */
-  basisCurve(all: Float64Array, tauNs: number, out: Float64Array): void {
+  /**
+   * Basis curve of one lifetime at the IRF settings in `all` (full axis), into `out`. `sameIrf`: the
+   * IRF parameters are those of the previous call, so the shifted IRF is reused.
+   */
+  basisCurve(all: Float64Array, tauNs: number, out: Float64Array, sameIrf = false): void {
     const s = this.setup;
     if (s.mode === 'measured' && s.irf) {
-      shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null);
+      if (!sameIrf)
+        shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null, this.slopes);
       exponentialBasis(this.irfShifted, s.binWidthNs, tauNs, s.periodNs, out, null, null, null);
     } else if (s.mode === 'gaussian') {
       emgBasis(
@@ -168,7 +175,7 @@ export class DecayModel {
     if (s.mode === 'measured') {
       const irf = s.irf as Float64Array;
       const wantShift = jac !== null && freeRow[L.shift] >= 0;
-      shiftIrf(irf, all[L.shift] / dt, this.irfShifted, wantShift ? this.dIrf : null);
+      shiftIrf(irf, all[L.shift] / dt, this.irfShifted, wantShift ? this.dIrf : null, this.slopes);
       if (wantShift) this.shiftAcc.fill(0);
       if (L.scatter >= 0) {
         const c = all[L.scatter] * s.scatterScale;

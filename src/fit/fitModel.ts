@@ -206,7 +206,7 @@ function runFit(setup: FitSetup): FitRun {
     const lm = levenbergMarquardt(problem, p0, {
       maxIterations: setup.maxIterations,
       ftol: 1e-10,
-      atol: 1e-7,
+      atol: 1e-5,
       xtol: 1e-9,
     });
     if (!best || (Number.isFinite(lm.objective) && !(lm.objective >= best.lm.objective))) {

@@ -123,18 +123,27 @@ function gradientAndHessian(
   hW: Float64Array,
 ): void {
   const { nParams: P, nPoints: N, data, loss, weights } = prob;
-  for (let i = 0; i < N; i++) {
-    const m = model[i];
-    const y = data[i];
-    if (loss === 'leastSquares') {
+  // Per-point first derivative of ρ and curvature weight, one tight loop per loss.
+  if (loss === 'leastSquares') {
+    for (let i = 0; i < N; i++) {
       const w = weights ? weights[i] : 1;
-      dRho[i] = -2 * w * (y - m);
+      dRho[i] = -2 * w * (data[i] - model[i]);
       hW[i] = 2 * w;
-    } else {
-      const mf = m > MODEL_FLOOR ? m : MODEL_FLOOR;
-      if (loss === 'poisson') dRho[i] = y > 0 ? 2 * (1 - y / mf) : 2;
-      else dRho[i] = 1 - (y * y) / (mf * mf);
-      hW[i] = 2 / mf;
+    }
+  } else if (loss === 'poisson') {
+    for (let i = 0; i < N; i++) {
+      const m = model[i];
+      const inv = 1 / (m > MODEL_FLOOR ? m : MODEL_FLOOR);
+      dRho[i] = 2 - 2 * data[i] * inv;
+      hW[i] = 2 * inv;
+    }
+  } else {
+    for (let i = 0; i < N; i++) {
+      const m = model[i];
+      const inv = 1 / (m > MODEL_FLOOR ? m : MODEL_FLOOR);
+      const y = data[i];
+      dRho[i] = 1 - y * y * inv * inv;
+      hW[i] = 2 * inv;
     }
   }
   // One pass over the points: each point's Jacobian column is read once (the rows are long, P is small).

@@ -102,8 +102,9 @@ export function gridStarts(
   // Columns: grid bases, fixed-lifetime bases, background, scatter.
   const columns: Float64Array[] = [];
   const full = new Float64Array(s.channels);
-  for (const t of grid) {
-    model.basisCurve(base, t, full);
+  for (let k = 0; k < grid.length; k++) {
+    const t = grid[k];
+    model.basisCurve(base, t, full, k > 0);
     columns.push(Float64Array.from(full.subarray(i0, i1)));
   }
   const fixedCol: number[] = [];
@@ -139,19 +140,24 @@ export function gridStarts(
   const C = columns.length;
   const gram = new Float64Array(C * C);
   const rhs = new Float64Array(C);
+  // Starting values need no more than ~1000 channels: every stride-th one, weighted up to match.
+  const stride = Math.max(1, Math.floor(nFit / 1000));
   let yWy = 0;
-  for (let i = 0; i < nFit; i++) yWy += w[i] * y[i] * y[i];
-  // One pass over the channels for the whole Gram matrix (the columns are long, C is small).
+  for (let i = 0; i < nFit; i += stride) yWy += stride * w[i] * y[i] * y[i];
+  // One pass over the channels for the whole Gram matrix, columns packed in one array (C is small).
+  const flat = new Float64Array(C * nFit);
+  for (let a = 0; a < C; a++) flat.set(columns[a], a * nFit);
   const v = new Float64Array(C);
-  for (let i = 0; i < nFit; i++) {
-    const wi = w[i];
+  for (let i = 0; i < nFit; i += stride) {
+    const wi = w[i] * stride;
     const wy = wi * y[i];
-    for (let a = 0; a < C; a++) v[a] = columns[a][i];
+    for (let a = 0; a < C; a++) v[a] = flat[a * nFit + i];
     for (let a = 0; a < C; a++) {
       const va = v[a];
       rhs[a] += wy * va;
       const wa = wi * va;
-      for (let b = 0; b <= a; b++) gram[a * C + b] += wa * v[b];
+      const row = a * C;
+      for (let b = 0; b <= a; b++) gram[row + b] += wa * v[b];
     }
   }
   for (let a = 0; a < C; a++) for (let b = 0; b < a; b++) gram[b * C + a] = gram[a * C + b];

@@ -169,6 +169,7 @@ function slopeAt(irf: Float64Array, j: number): number {
 /**
  * IRF moved later by `shiftChannels` (may be negative, need not be whole), written into `out`; when
  * `dOut` is given it receives ∂out/∂shift per channel of shift. Channels moved past either end are lost.
+ * `slopes` (from `irfSlopes`) saves recomputing the IRF's slopes when one IRF is shifted many times.
  *
  * The piecewise-linear IRF of the module comment is moved by s = (m + f) channels and integrated over
  * each channel: q′ₖ = (1 − f)·qₖ₋ₘ + f·qₖ₋ₘ₋₁ + ½f(1 − f)·(dₖ₋ₘ₋₁ − dₖ₋ₘ). Plain linear
@@ -177,6 +178,41 @@ function slopeAt(irf: Float64Array, j: number): number {
  */
 export function shiftIrf(
   irf: Float64Array,
+  shiftChannels: number,
+  out: Float64Array,
+  dOut: Float64Array | null,
+  slopes: Float64Array | null = null,
+): void {
+  const n = irf.length;
+  if (slopes) {
+    shiftWithSlopes(irf, slopes, shiftChannels, out, dOut);
+    return;
+  }
+  const m = Math.floor(shiftChannels);
+  const f = shiftChannels - m;
+  const c = 0.5 * f * (1 - f);
+  const dc = 0.5 * (1 - 2 * f);
+  for (let k = 0; k < n; k++) {
+    const j0 = k - m;
+    const j1 = j0 - 1;
+    const a = j0 >= 0 && j0 < n ? irf[j0] : 0;
+    const b = j1 >= 0 && j1 < n ? irf[j1] : 0;
+    const slopeDiff = c !== 0 || dOut ? slopeAt(irf, j1) - slopeAt(irf, j0) : 0;
+    out[k] = (1 - f) * a + f * b + c * slopeDiff;
+    if (dOut) dOut[k] = b - a + dc * slopeDiff;
+  }
+}
+
+/** Limited slopes dₖ of every channel (see the module comment), for repeated shifts of one IRF. */
+export function irfSlopes(irf: Float64Array): Float64Array {
+  const d = new Float64Array(irf.length);
+  for (let j = 0; j < irf.length; j++) d[j] = slopeAt(irf, j);
+  return d;
+}
+
+function shiftWithSlopes(
+  irf: Float64Array,
+  slopes: Float64Array,
   shiftChannels: number,
   out: Float64Array,
   dOut: Float64Array | null,
@@ -189,9 +225,11 @@ export function shiftIrf(
   for (let k = 0; k < n; k++) {
     const j0 = k - m;
     const j1 = j0 - 1;
-    const a = j0 >= 0 && j0 < n ? irf[j0] : 0;
-    const b = j1 >= 0 && j1 < n ? irf[j1] : 0;
-    const slopeDiff = c !== 0 || dOut ? slopeAt(irf, j1) - slopeAt(irf, j0) : 0;
+    const in0 = j0 >= 0 && j0 < n;
+    const in1 = j1 >= 0 && j1 < n;
+    const a = in0 ? irf[j0] : 0;
+    const b = in1 ? irf[j1] : 0;
+    const slopeDiff = (in1 ? slopes[j1] : 0) - (in0 ? slopes[j0] : 0);
     out[k] = (1 - f) * a + f * b + c * slopeDiff;
     if (dOut) dOut[k] = b - a + dc * slopeDiff;
   }
