@@ -1,7 +1,7 @@
 import { InputError } from '../errors.js';
 import { NS_PER, type TimeUnit } from '../../shared/units.js';
 import type { Histogram, ImportReport } from './types.js';
-import { findColumn, parseCellNumber, readTextTable } from './textTable.js';
+import { findColumn, parseColumnNumbers, readTextTable } from './textTable.js';
 import { classifyTimeColumn, parseTimeUnit } from './columnNames.js';
 import { formatNumber } from './validate.js';
 
@@ -98,19 +98,16 @@ export function parseArrivalsText(text: string, options: ArrivalsParseOptions): 
   }
 
   const scale = NS_PER[unit];
-  const arrivals = new Float64Array(table.rows.length);
+  const arrivals = parseColumnNumbers(table, index, 'an arrival time');
   let maxNs = -Infinity;
-  for (let i = 0; i < table.rows.length; i++) {
-    const row = table.rows[i];
-    const where = { file: source, line: row.line, column: index + 1 };
-    const v = parseCellNumber(row.cells[index], table.decimalMark, where, 'an arrival time') * scale;
+  for (let i = 0; i < arrivals.length; i++) {
+    const v = (arrivals[i] *= scale);
     if (!options.rangeNs && v < 0) {
       throw new InputError(
-        `arrival time ${row.cells[index].trim()} is negative; give a range that includes it or correct the file`,
-        where,
+        `arrival time ${table.rows[i].cells[index].trim()} is negative; give a range that includes it or correct the file`,
+        { file: source, line: table.rows[i].line, column: index + 1 },
       );
     }
-    arrivals[i] = v;
     if (v > maxNs) maxNs = v;
   }
 

@@ -1,7 +1,13 @@
 import { InputError } from '../errors.js';
 import { NS_PER, type TimeUnit } from '../../shared/units.js';
 import type { Histogram, ImportReport } from './types.js';
-import { findColumn, parseCellNumber, readTextTable, type TextTable } from './textTable.js';
+import {
+  findColumn,
+  parseCellNumber,
+  parseColumnNumbers,
+  readTextTable,
+  type TextTable,
+} from './textTable.js';
 import { classifyTimeColumn, parseTimeUnit } from './columnNames.js';
 import { findMetadataBinWidth } from './metadata.js';
 import { checkCounts, formatNumber, relativeDiffers } from './validate.js';
@@ -62,20 +68,7 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
     });
   }
 
-  const counts = new Float64Array(table.rows.length);
-  for (let i = 0; i < table.rows.length; i++) {
-    const row = table.rows[i];
-    counts[i] = parseCellNumber(
-      row.cells[countsIndex],
-      table.decimalMark,
-      {
-        file: source,
-        line: row.line,
-        column: countsIndex + 1,
-      },
-      'a count',
-    );
-  }
+  const counts = parseColumnNumbers(table, countsIndex, 'a count');
   warnings.push(...checkCounts(counts, table.rows, countsIndex, source));
 
   let binWidthNs: number;
@@ -302,30 +295,27 @@ function readUniformAxis(
 ): { startNs: number; stepNs: number } {
   const { rows, source } = table;
   const n = rows.length;
-  const t = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    t[i] = parseCellNumber(
-      rows[i].cells[index],
-      table.decimalMark,
-      { file: source, line: rows[i].line, column: index + 1 },
-      'a time',
-    );
-    if (i > 0 && !(t[i] > t[i - 1])) {
+  const t = parseColumnNumbers(table, index, 'a time');
+  for (let i = 1; i < n; i++) {
+    if (!(t[i] > t[i - 1])) {
       throw new InputError(
         `time ${rows[i].cells[index].trim()} does not increase after ${rows[i - 1].cells[index].trim()} on line ${rows[i - 1].line}; the time axis must be strictly increasing`,
         { file: source, line: rows[i].line, column: index + 1 },
       );
     }
   }
-  const steps = Array.from({ length: n - 1 }, (_, i) => t[i + 1] - t[i]).sort((a, b) => a - b);
-  const median = steps[(steps.length - 1) >> 1];
+  const steps = new Float64Array(n - 1);
+  for (let i = 1; i < n; i++) steps[i - 1] = t[i] - t[i - 1];
+  const median = steps.sort()[(n - 2) >> 1];
+  const relTol = AXIS_TOLERANCE * median;
   for (let i = 1; i < n; i++) {
-    const step = t[i] - t[i - 1];
+    const off = Math.abs(t[i] - t[i - 1] - median);
+    if (off <= relTol) continue;
+    // Only a step outside 0.1 % needs the printed precision of its two cells.
     const rounding = (printedUlp(rows[i].cells[index]) + printedUlp(rows[i - 1].cells[index])) / 2;
-    const tol = Math.max(AXIS_TOLERANCE * median, Math.min(rounding * 1.000001, 0.1 * median));
-    if (Math.abs(step - median) > tol) {
+    if (off > Math.min(rounding * 1.000001, 0.1 * median)) {
       throw new InputError(
-        `the time step here is ${formatNumber(step)} but the axis step is ${formatNumber(median)}: the time axis must be uniform within 0.1 % (gaps and merged files are not supported)`,
+        `the time step here is ${formatNumber(t[i] - t[i - 1])} but the axis step is ${formatNumber(median)}: the time axis must be uniform within 0.1 % (gaps and merged files are not supported)`,
         { file: source, line: rows[i].line, column: index + 1 },
       );
     }
@@ -337,16 +327,16 @@ function readUniformAxis(
 /** Channel indices must be consecutive integers; returns the first. */
 function readChannelIndices(table: TextTable, index: number): number {
   const { rows, source } = table;
-  let first = 0;
+  const v = parseColumnNumbers(table, index, 'a channel index');
+  const first = v[0];
   for (let i = 0; i < rows.length; i++) {
     const where = { file: source, line: rows[i].line, column: index + 1 };
-    const v = parseCellNumber(rows[i].cells[index], table.decimalMark, where, 'a channel index');
-    if (!Number.isInteger(v))
+    if (!Number.isInteger(v[i])) {
       throw new InputError(`channel index ${rows[i].cells[index].trim()} is not a whole number`, where);
-    if (i === 0) first = v;
-    else if (v !== first + i) {
+    }
+    if (v[i] !== first + i) {
       throw new InputError(
-        `channel ${v} follows channel ${first + i - 1}; channels must be consecutive`,
+        `channel ${v[i]} follows channel ${first + i - 1}; channels must be consecutive`,
         where,
       );
     }

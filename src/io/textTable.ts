@@ -111,6 +111,24 @@ export function parseCellNumber(
   return v;
 }
 
+/**
+ * Parses a whole column as finite numbers, naming the first cell that is not one. The common cell
+ * (already trimmed, well formed) takes a fast path that builds no location object.
+ */
+export function parseColumnNumbers(table: TextTable, index: number, what = 'a number'): Float64Array {
+  const { rows, decimalMark, source } = table;
+  const re = decimalMark === '.' ? NUMBER : NUMBER_COMMA;
+  const out = new Float64Array(rows.length);
+  for (let i = 0; i < rows.length; i++) {
+    const cell = rows[i].cells[index];
+    const v = re.test(cell) ? Number(decimalMark === ',' ? cell.replace(',', '.') : cell) : NaN;
+    out[i] = Number.isFinite(v)
+      ? v
+      : parseCellNumber(cell, decimalMark, { file: source, line: rows[i].line, column: index + 1 }, what);
+  }
+  return out;
+}
+
 function clip(s: string): string {
   return s.length > 40 ? `${s.slice(0, 37)}…` : s;
 }
@@ -127,13 +145,20 @@ interface ContentLine {
 export function readTextTable(text: string, source: string): TextTable {
   assertTextual(text, source);
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-  const lines = text.split(/\r\n|\r|\n/);
+  // A plain split is several times faster than the regular expression when there is no CR at all.
+  const lines = text.includes('\r') ? text.split(/\r\n|\r|\n/) : text.split('\n');
   const metadata: Record<string, string> = {};
   const metadataLines: Record<string, number> = {};
   const warnings: string[] = [];
   const content: ContentLine[] = [];
   for (let i = 0; i < lines.length; i++) {
     const raw = lines[i];
+    // Fast path for the common data line, which starts with a digit, sign or point.
+    const c0 = raw.charCodeAt(0);
+    if ((c0 >= 48 && c0 <= 57) || c0 === 45 || c0 === 46 || c0 === 43) {
+      content.push({ line: i + 1, text: raw });
+      continue;
+    }
     const trimmed = raw.trim();
     if (trimmed === '') continue;
     if (trimmed.startsWith('#')) {
@@ -259,26 +284,28 @@ const PAPA_DELIMITER: Record<string, string> = { comma: ',', tab: '\t', semicolo
 function splitLines(content: ContentLine[], delimiter: Delimiter, source: string): string[][] {
   if (delimiter === 'single column') return content.map((c) => [c.text.trim()]);
   if (delimiter === 'whitespace') return content.map((c) => c.text.trim().split(/\s+/));
-  // papaparse splits (quotes, escaped quotes); we keep one row per line so line numbers stay exact.
-  const parsed = Papa.parse<string[]>(content.map((c) => c.text).join('\n'), {
-    delimiter: PAPA_DELIMITER[delimiter],
+  const sep = PAPA_DELIMITER[delimiter];
+  // Lines without a quote split natively (the bulk of any numeric table, and several times faster);
+  // papaparse handles quoted fields. One row per line keeps line numbers exact.
+  return content.map((c) => (c.text.includes('"') ? splitQuoted(c, sep, source) : c.text.split(sep)));
+}
+
+function splitQuoted(c: ContentLine, sep: string, source: string): string[] {
+  const parsed = Papa.parse<string[]>(c.text, {
+    delimiter: sep,
     newline: '\n',
     quoteChar: '"',
     header: false,
     dynamicTyping: false,
     skipEmptyLines: false,
   });
-  const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
-  if (quoteError || parsed.data.length !== content.length) {
-    // Rows agree with lines up to the first field that swallowed a line break.
-    const spanning = parsed.data.findIndex((cells) => cells.some((c) => c.includes('\n')));
-    const row = spanning >= 0 ? spanning : (quoteError?.row ?? 0);
+  if (parsed.errors.some((e) => e.type === 'Quotes') || parsed.data.length !== 1) {
     throw new InputError('has an unterminated quoted field; quotes must open and close on the same line', {
       file: source,
-      line: content[Math.min(row, content.length - 1)].line,
+      line: c.line,
     });
   }
-  return parsed.data;
+  return parsed.data[0];
 }
 
 /**
