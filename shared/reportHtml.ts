@@ -9,8 +9,10 @@
  *
  * Size: the summary (everything except the plot curves) is one block parsed at load; each sample's
  * curves sit in their own block, parsed when the sample is first shown, so a report of hundreds of
- * samples opens quickly. Curves in the report are a display copy rounded to fixed decimals (counts to
- * 0.01, residuals to 0.001, time to 1e-5 ns); the batch's results.json keeps full precision.
+ * samples opens quickly; the first sample's curves come before the page script so that it can draw
+ * at once, the others after it, parsed while the reader looks at the first. Curves in the report are a
+ * display copy (model and IRF to 4 significant digits and 0.001 counts, residuals to 0.01 σ, autocorrelation to 0.001
+ * and to half the fit range); the batch's results.json keeps full precision.
  */
 import type { FitCurves, ReportData, SampleResult } from './schema.js';
 
@@ -44,6 +46,19 @@ function roundTo<T extends number | null>(values: T[], decimals: number): (numbe
   return values.map((v) => (v === null || !Number.isFinite(v) ? null : Math.round(v * scale) / scale));
 }
 
+/**
+ * Counts for display: 4 significant digits, and 0 below 0.001 counts per channel (a Gaussian IRF's
+ * tail of 1e-300 would otherwise stretch a logarithmic axis over hundreds of decades).
+ */
+function roundCounts<T extends number | null>(values: T[]): (number | null)[] {
+  return values.map((v) => {
+    if (v === null || !Number.isFinite(v)) return null;
+    if (Math.abs(v) < 1e-3) return 0;
+    const scale = 10 ** (3 - Math.floor(Math.log10(Math.abs(v))));
+    return Math.round(v * scale) / scale;
+  });
+}
+
 function packAxis(timeNs: number[]): PackedAxis {
   const n = timeNs.length;
   if (n < 2) return timeNs.slice();
@@ -57,11 +72,16 @@ function packAxis(timeNs: number[]): PackedAxis {
 export function packCurves(c: FitCurves): PackedCurves {
   return {
     timeNs: packAxis(c.timeNs),
-    data: roundTo(c.data, 2) as number[],
-    model: roundTo(c.model, 2),
-    irf: roundTo(c.irf, 2) as number[],
-    weightedResiduals: roundTo(c.weightedResiduals, 3),
-    autocorrelation: roundTo(c.autocorrelation, 4) as number[],
+    // Measured counts are kept as they are: they are what the reader judges the fit by.
+    data: c.data.slice(),
+    model: roundCounts(c.model),
+    irf: roundCounts(c.irf) as number[],
+    weightedResiduals: roundTo(c.weightedResiduals, 2),
+    // The page shows the autocorrelation to half the fit range, beyond which few pairs enter a lag.
+    autocorrelation: roundTo(
+      c.autocorrelation.slice(0, Math.ceil(c.autocorrelation.length / 2) + 1),
+      3,
+    ) as number[],
     fitStartIndex: c.fitStartIndex,
     fitEndIndex: c.fitEndIndex,
   };
@@ -127,17 +147,19 @@ export function assembleReportHtml(assets: ReportAssets, data: ReportData): stri
     '<div id="lumirate-app"></div>\n',
     `<script type="application/json" id="${REPORT_DATA_ID}">${jsonForScript(summaryOf(data))}</script>\n`,
   );
-  data.samples.forEach((s, i) => {
-    if (s.fit?.curves) {
-      parts.push(
-        `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">${jsonForScript(packCurves(s.fit.curves))}</script>\n`,
-      );
-    }
-  });
+  const curveBlock = (i: number) => {
+    const curves = data.samples[i].fit?.curves;
+    return curves
+      ? `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">${jsonForScript(packCurves(curves))}</script>\n`
+      : '';
+  };
+  // The page opens on the first sample: its curves are there before the page script runs.
+  if (data.samples.length) parts.push(curveBlock(0));
   parts.push(
     `<script>${inlineScript(assets.uplotJs)}</script>\n`,
     `<script>${inlineScript(assets.appJs)}</script>\n`,
   );
+  for (let i = 1; i < data.samples.length; i++) parts.push(curveBlock(i));
   parts.push('</body>\n</html>\n');
   return parts.join('');
 }

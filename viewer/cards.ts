@@ -104,6 +104,7 @@ export function fitCard(s: SampleResult): HTMLElement {
     ['Background', ve(f.background, f.backgroundErr, 'counts/channel')],
     ['Scatter', ve(f.scatter, f.scatterErr), 'IRF-shaped term, fraction of the counts in the fit range'],
     ['IRF FWHM', f.irfFwhmNs !== undefined ? ve(f.irfFwhmNs, f.irfFwhmErrNs, 'ns') : ''],
+    ['IRF centre', f.irfCenterNs !== undefined ? ve(f.irfCenterNs, f.irfCenterErrNs, 'ns') : ''],
     ['χ²ᵣ (Pearson)', n(f.chi2Reduced), `χ² = ${n(f.chi2)} over ${f.dof} degrees of freedom`],
     ['Poisson deviance / dof', n(f.deviancePerDof)],
     ['Durbin–Watson', n(f.durbinWatson, 3)],
@@ -191,7 +192,7 @@ export function ratesCard(s: SampleResult): HTMLElement | null {
   return card(
     'Rates and Strickler–Berg',
     definitionList(rows),
-    list('lr-notes-list', [...(r?.notes ?? []), ...(sb?.note ? [sb.note] : [])]),
+    list('lr-notes-list', [...(r?.notes ?? []), ...(sb?.note ? [sb.note] : []), ...(sb?.notes ?? [])]),
     list('lr-warnings', [...(r?.warnings ?? []), ...(sb?.warnings ?? [])]),
   );
 }

@@ -23,9 +23,19 @@ export interface PlotHandle {
   destroy(): void;
 }
 
-/** On a log axis a count ≤ 0 has no place: null leaves a gap instead of a clamped spike. */
-function positiveOrNull(values: (number | null)[]): (number | null)[] {
-  return values.map((v) => (v !== null && v > 0 ? v : null));
+/**
+ * On a log axis a count ≤ 0 has no place: null leaves a gap instead of a clamped spike. Values below
+ * `floor` are dropped too, so that a model or IRF tail far below one count cannot stretch the axis.
+ */
+function positiveOrNull(values: (number | null)[], floor: number): (number | null)[] {
+  return values.map((v) => (v !== null && v > 0 && v >= floor ? v : null));
+}
+
+/** Lowest count worth a place on the decay's log axis: a tenth of the smallest positive measured count. */
+function logFloor(data: (number | null)[]): number {
+  let min = Infinity;
+  for (const v of data) if (v !== null && v > 0 && v < min) min = v;
+  return Number.isFinite(min) ? min / 10 : 0.1;
 }
 
 function widthOf(container: HTMLElement): number {
@@ -180,13 +190,14 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
     { label: 'Time (ns)' },
     { label: 'Data', ...STYLE.data, points: { show: false } },
   ];
-  const decayData: (number | null)[][] = [t, positiveOrNull(pick(curves.data, keep))];
+  const floor = logFloor(curves.data);
+  const decayData: (number | null)[][] = [t, positiveOrNull(pick(curves.data, keep), floor)];
   if (curves.irf.length === curves.data.length) {
     decaySeries.push({ label: 'IRF', ...STYLE.irf, points: { show: false } });
-    decayData.push(positiveOrNull(pick(curves.irf, keep)));
+    decayData.push(positiveOrNull(pick(curves.irf, keep), floor));
   }
   decaySeries.push({ label: 'Model', ...STYLE.model, points: { show: false } });
-  decayData.push(positiveOrNull(pick(curves.model, keep)));
+  decayData.push(positiveOrNull(pick(curves.model, keep), floor));
 
   const handles: PlotHandle[] = [];
   const decay = basePlot(
@@ -246,9 +257,9 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
   link(decay.plot, residuals.plot);
   link(residuals.plot, decay.plot);
 
-  // The autocorrelation is shown to half the fit range, beyond which few pairs enter each lag.
+  // The report carries the autocorrelation to half the fit range already (see packCurves).
   const dt = curves.timeNs.length > 1 ? curves.timeNs[1] - curves.timeNs[0] : 1;
-  const ac = curves.autocorrelation.slice(0, Math.max(2, Math.ceil(curves.autocorrelation.length / 2)));
+  const ac = curves.autocorrelation;
   const lag = ac.map((_, j) => j * dt);
   handles.push(
     basePlot(

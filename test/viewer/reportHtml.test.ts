@@ -134,20 +134,23 @@ describe('packCurves / unpackCurves', () => {
     expect(unpackCurves(packCurves(odd)).timeNs[7]).toBeCloseTo(odd.timeNs[7], 12);
   });
 
-  it('rounds counts to 0.01 and residuals to 0.001, keeping masked channels as null', () => {
+  it('rounds the model and IRF to 4 significant digits, residuals to 0.01, keeping masked channels as null', () => {
     const c: FitCurves = {
       ...curves,
       timeNs: [0, 0.1, 0.2],
       data: [5, 6, 7],
-      model: [null, 1234.56789, 0.004],
-      irf: [0, 1.005, 2.3333],
+      model: [null, 1234.56789, 0.00123456],
+      irf: [1e-300, 1.00051, 2.33333],
       weightedResiduals: [null, -1.23456, Number.NaN],
-      autocorrelation: [1, 0.123456],
+      autocorrelation: [1, 0.123456, 0.05, -0.02, 0.01],
     };
     const p = packCurves(c);
-    expect(p.model).toEqual([null, 1234.57, 0]);
-    expect(p.weightedResiduals).toEqual([null, -1.235, null]);
-    expect(p.autocorrelation).toEqual([1, 0.1235]);
+    expect(p.model).toEqual([null, 1235, 0.001235]);
+    // A tail far below one count becomes 0, which the page leaves off its log axis.
+    expect(p.irf).toEqual([0, 1.001, 2.333]);
+    expect(p.weightedResiduals).toEqual([null, -1.23, null]);
+    // Half the lags plus one: the page shows the autocorrelation to half the fit range.
+    expect(p.autocorrelation).toEqual([1, 0.123, 0.05, -0.02]);
     expect(p.data).toEqual([5, 6, 7]);
   });
 });
