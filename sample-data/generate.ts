@@ -441,7 +441,8 @@ for (const setting of Object.keys(SETTINGS) as Setting[]) {
     periodNs: s.periodNs,
     irf: irfSpec(setting),
     irfCounts: 150_000,
-    irfBackgroundPerChannel: 1,
+    // IRF files as after the usual dark-count subtraction: no flat background.
+    irfBackgroundPerChannel: 0,
     seed: s.seed,
   });
   write(
