@@ -1,7 +1,7 @@
 /**
  * Writing the offline HTML report: reads the page bundle and uPlot's files, assembles the page with
- * `assembleReportHtml` and writes it atomically (a temporary file in the same folder, then a rename), so
- * an interrupted run never leaves half a report.
+ * `assembleReportHtml` and writes it atomically (the batch's `writeFileAtomic`: a temporary file in the
+ * same folder, then a rename), so an interrupted run never leaves half a report.
  *
  * The page bundle is `dist/viewer/app.js` + `app.css`, made by `npm run build`. When the viewer's
  * sources are present (a source checkout, tests under tsx) and the bundle is missing or older than
@@ -31,6 +31,8 @@ import {
   type SeriesResult,
 } from '../shared/schema.js';
 import { InputError } from '../src/errors.js';
+import { firstJsonError } from '../src/batch/jsonPositions.js';
+import { writeFileAtomic } from './batch/atomicWrite.js';
 import { packageVersion } from './version.js';
 
 /** The folder holding lumirate's package.json, from sources or from dist/. */
@@ -100,18 +102,6 @@ export function loadReportAssets(): ReportAssets {
   return cachedAssets;
 }
 
-/** Writes text to `path` through a temporary file in the same folder and a rename. */
-export function writeFileAtomic(path: string, text: string): void {
-  const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.${Date.now()}.tmp`);
-  try {
-    writeFileSync(tmp, text);
-    renameSync(tmp, path);
-  } catch (err) {
-    if (existsSync(tmp)) unlinkSync(tmp);
-    throw err;
-  }
-}
-
 /** Writes the self-contained report for `data` to `outPath`. */
 export function writeReport(data: ReportData, outPath: string): void {
   writeFileAtomic(outPath, assembleReportHtml(loadReportAssets(), data));
@@ -133,130 +123,14 @@ function lineColumn(text: string, offset: number): { line: number; column: numbe
   return { line, column: offset - lineStart + 1 };
 }
 
-/**
- * Where and why a text that JSON.parse rejected is not JSON (Node's message carries no position).
- * A small recursive-descent checker that follows RFC 8259 and stops at the first fault.
- */
-export function locateJsonError(text: string): { offset: number; reason: string } {
-  let i = 0;
-  class Fault extends Error {
-    constructor(
-      readonly at: number,
-      reason: string,
-    ) {
-      super(reason);
-    }
-  }
-  const describe = (at: number) => (at >= text.length ? 'the end of the file' : `'${text[at]}'`);
-  const ws = () => {
-    while (i < text.length && ' \t\n\r'.includes(text[i])) i++;
-  };
-  const expect = (ch: string, what: string) => {
-    if (text[i] !== ch) throw new Fault(i, `expected ${what} but found ${describe(i)}`);
-    i++;
-  };
-  const value = (): void => {
-    ws();
-    const c = text[i];
-    if (c === '{') {
-      i++;
-      ws();
-      if (text[i] === '}') {
-        i++;
-        return;
-      }
-      for (;;) {
-        ws();
-        if (text[i] !== '"') throw new Fault(i, `expected a quoted key but found ${describe(i)}`);
-        string();
-        ws();
-        expect(':', "':'");
-        value();
-        ws();
-        if (text[i] === ',') {
-          i++;
-          continue;
-        }
-        expect('}', "',' or '}'");
-        return;
-      }
-    }
-    if (c === '[') {
-      i++;
-      ws();
-      if (text[i] === ']') {
-        i++;
-        return;
-      }
-      for (;;) {
-        value();
-        ws();
-        if (text[i] === ',') {
-          i++;
-          continue;
-        }
-        expect(']', "',' or ']'");
-        return;
-      }
-    }
-    if (c === '"') return string();
-    for (const word of ['true', 'false', 'null']) {
-      if (text.startsWith(word, i)) {
-        i += word.length;
-        return;
-      }
-    }
-    const m = /^-?(0|[1-9]\d*)(\.\d+)?([eE][+-]?\d+)?/.exec(text.slice(i, i + 400));
-    if (m && m[0].length > 0) {
-      i += m[0].length;
-      return;
-    }
-    throw new Fault(i, `expected a value but found ${describe(i)}`);
-  };
-  const string = () => {
-    const start = i;
-    i++;
-    while (i < text.length) {
-      const ch = text[i];
-      if (ch === '"') {
-        i++;
-        return;
-      }
-      if (ch === '\\') {
-        const e = text[i + 1];
-        if (e === 'u') {
-          if (!/^[0-9a-fA-F]{4}$/.test(text.slice(i + 2, i + 6)))
-            throw new Fault(i, 'bad \\u escape in a string');
-          i += 6;
-        } else if (e !== undefined && '"\\/bfnrt'.includes(e)) i += 2;
-        else throw new Fault(i, 'bad escape in a string');
-        continue;
-      }
-      if (ch.charCodeAt(0) < 0x20)
-        throw new Fault(i, 'a control character (such as a line break) inside a string');
-      i++;
-    }
-    throw new Fault(start, 'a string that never ends');
-  };
-  try {
-    value();
-    ws();
-    if (i < text.length) throw new Fault(i, `unexpected ${describe(i)} after the end of the JSON value`);
-  } catch (err) {
-    if (err instanceof Fault) return { offset: err.at, reason: err.message };
-    throw err;
-  }
-  return { offset: 0, reason: 'not valid JSON' };
-}
-
 /** Parses JSON text, or throws an InputError naming the file, line and column of the fault. */
 export function parseJsonFile(text: string, file: string): unknown {
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   try {
     return JSON.parse(body);
   } catch {
-    const { offset, reason } = locateJsonError(body);
-    throw new InputError(`not valid JSON: ${reason}`, { file, ...lineColumn(body, offset) });
+    const fault = firstJsonError(body) ?? { offset: 0, reason: 'not valid JSON' };
+    throw new InputError(`not valid JSON: ${fault.reason}`, { file, ...lineColumn(body, fault.offset) });
   }
 }
 
@@ -346,22 +220,6 @@ export function seriesFromJson(value: unknown, file: string): SeriesResult[] {
       );
   });
   return items as SeriesResult[];
-}
-
-/** Reads a file as UTF-8 text, or throws an InputError that names it. */
-export function readTextFile(path: string): string {
-  try {
-    return readFileSync(path, 'utf8');
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    const why =
-      code === 'ENOENT'
-        ? 'no such file'
-        : code === 'EISDIR'
-          ? 'is a folder, not a file'
-          : (err as Error).message;
-    throw new InputError(why, { file: path });
-  }
 }
 
 /** Same file, after resolving both paths. */

@@ -3,14 +3,8 @@ import { dirname, join } from 'node:path';
 import { existsSync, statSync } from 'node:fs';
 import { InputError } from '../../src/errors.js';
 import { action } from '../run.js';
-import {
-  parseJsonFile,
-  readTextFile,
-  reportDataFromJson,
-  samePath,
-  seriesFromJson,
-  writeReport,
-} from '../report.js';
+import { readTextFile } from '../readInput.js';
+import { parseJsonFile, reportDataFromJson, samePath, seriesFromJson, writeReport } from '../report.js';
 
 interface ViewOptions {
   out?: string;
