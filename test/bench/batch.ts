@@ -12,11 +12,17 @@
  *
  * Peak memory: the CLI runs its workers as threads of one process, so the process's VmHWM (peak
  * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all.
+ *
+ * `BENCH_BATCH_N` changes the number of decays (default 1000).
  */
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { sha256Hex } from '../../src/batch/hash.js';
+import { fitDecay } from '../../src/fit/fitDecay.js';
+import { decodeText } from '../../src/io/decodeText.js';
+import { parseHistogramText } from '../../src/io/parseHistogram.js';
 import { formatHistogramTable } from '../../src/io/writeTable.js';
 import { createRng } from '../../src/sim/rng.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
@@ -67,6 +73,45 @@ try {
   }
   writeFileSync(join(dir, 'manifest.csv'), rows.join('\n') + '\n');
   console.log(`generated ${N} decays of 4096 channels in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+
+  // Where a sample's time goes, on this thread: CPU time (not wall, so other load on the machine
+  // does not inflate it) of each stage a worker runs, over the first 50 decays.
+  {
+    const cpuMs = () => {
+      const u = process.cpuUsage();
+      return (u.user + u.system) / 1000;
+    };
+    const irf = parseHistogramText(readFileSync(join(dir, 'irf.csv'), 'utf8'), { source: 'irf.csv' });
+    const stages = {
+      'read + decode + SHA-256': 0,
+      parse: 0,
+      'fit (no curves)': 0,
+      'fit with curves': 0,
+      'result to JSON': 0,
+    };
+    const m = Math.min(50, N);
+    for (let i = 0; i < m; i++) {
+      let t = cpuMs();
+      const bytes = readFileSync(join(data, `d${String(i).padStart(4, '0')}.csv`));
+      const text = decodeText(bytes, 'decay');
+      sha256Hex(bytes);
+      stages['read + decode + SHA-256'] += cpuMs() - t;
+      t = cpuMs();
+      const h = parseHistogramText(text, { source: 'decay' });
+      stages.parse += cpuMs() - t;
+      t = cpuMs();
+      fitDecay(h, irf, { components: 2, curves: false });
+      stages['fit (no curves)'] += cpuMs() - t;
+      t = cpuMs();
+      const fit = fitDecay(h, irf, { components: 2 });
+      stages['fit with curves'] += cpuMs() - t;
+      t = cpuMs();
+      JSON.stringify(fit);
+      stages['result to JSON'] += cpuMs() - t;
+    }
+    console.log(`CPU per decay by stage (mean of ${m}, one thread):`);
+    for (const [k, v] of Object.entries(stages)) console.log(`  ${k.padEnd(26)} ${(v / m).toFixed(1)} ms`);
+  }
 
   interface Run {
     wallS: number;
