@@ -132,7 +132,7 @@ export interface SimulatedMeasurement {
 const FWHM_PER_SIGMA = 2 * Math.sqrt(2 * Math.LN2);
 
 /** Options checked and filled with their defaults. */
-interface Resolved {
+export interface ResolvedSimulationOptions {
   taus: number[];
   amplitudeFractions: number[];
   intensityFractions: number[];
@@ -165,7 +165,7 @@ function checkFinite(
 }
 
 /** Checks the options and fills in defaults; every complaint is an InputError naming the option. */
-export function resolveSimulationOptions(options: SimulationOptions): Resolved {
+export function resolveSimulationOptions(options: SimulationOptions): ResolvedSimulationOptions {
   const comps = options.components;
   if (!Array.isArray(comps) || comps.length === 0) fail('components: give at least one decay component');
   comps.forEach((c, i) => {
@@ -317,7 +317,7 @@ function delayBranches(
 }
 
 /** The arrival model of the decay measurement (fluorescence + scatter), per emitted photon. */
-export function decayArrivalModel(r: Resolved): ArrivalModel {
+export function decayArrivalModel(r: ResolvedSimulationOptions): ArrivalModel {
   const tail = tailOf(r.irf);
   const branches: ArrivalBranch[] = [];
   r.taus.forEach((tau, i) => {
@@ -336,7 +336,7 @@ export function decayArrivalModel(r: Resolved): ArrivalModel {
 }
 
 /** The arrival model of the IRF measurement: jitter alone. */
-export function irfArrivalModel(r: Resolved): ArrivalModel {
+export function irfArrivalModel(r: ResolvedSimulationOptions): ArrivalModel {
   return {
     channels: r.channels,
     binWidthNs: r.binWidthNs,

@@ -2,14 +2,14 @@
  * Test-side statistics for the simulator's checks, written independently of the fitter's code.
  */
 
-/** Standard normal 99.9 % quantile, z(0.999) = 3.0902323 (standard normal table; common practice). */
+/** Standard normal 99.9 % quantile, z(0.999) = 3.0902323 (VERIFIED with scipy, REFERENCE-VALUES §14). */
 export const Z_0999 = 3.0902323;
 
 /**
  * Upper quantile of χ² with ν degrees of freedom for a standard normal quantile z, by the
  * Wilson–Hilferty cube-root approximation (Wilson & Hilferty, Proc. Natl. Acad. Sci. 17, 684 (1931)):
- * χ²_q ≈ ν(1 − 2/(9ν) + z·sqrt(2/(9ν)))³. Relative error below 1 % for ν ≥ 10 at the 99.9 % level
- * (from memory; the tests use ν ≥ 50, where it is far smaller).
+ * χ²_q ≈ ν(1 − 2/(9ν) + z·sqrt(2/(9ν)))³. At the 99.9 % level it lies above the exact quantile by
+ * 0.6 % at ν = 10, 0.04 % at ν = 100 and 0.0015 % at ν = 1000 (REFERENCE-VALUES §14, VERIFIED).
  */
 export function chi2QuantileWilsonHilferty(nu: number, z: number): number {
   const a = 2 / (9 * nu);
