@@ -508,7 +508,7 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
 }
 
 /** Longest autocorrelation lag reported, channels: enough to show correlated structure, cheap to compute. */
-const MAX_AUTOCORRELATION_LAG = 512;
+const MAX_AUTOCORRELATION_LAG = 256;
 
 /** Curves for plotting on the full channel axis; model and residuals are null outside the fit range. */
 function plotCurves(

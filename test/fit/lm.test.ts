@@ -134,8 +134,8 @@ describe('levenbergMarquardt on the NIST StRD Lanczos problems', () => {
     );
     const got = sortedByRate(fit.parameterValues, [0, 0, 0, 0, 0, 0]);
     const worstLre = Math.min(...got.b.map((b, k) => -Math.log10(rel(b, c.b[k]))));
-    // It lands near the certified optimum but not on it to the digits our own minimiser reaches.
-    expect(worstLre).toBeGreaterThan(1);
-    expect(worstLre).toBeLessThan(9);
+    // Measured: ≈ 1.8 digits after 2000 iterations; short of the NIST-style pass (LRE ≥ 4, REFERENCE-VALUES
+    // §1) that our analytic-Jacobian minimiser clears by a wide margin in the tests above.
+    expect(worstLre).toBeLessThan(4);
   });
 });
