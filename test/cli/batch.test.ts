@@ -110,6 +110,40 @@ beforeAll(() => {
   );
 });
 
+/** Starts a one-worker batch into `out` and sends `signal` once three samples are in its journal. */
+async function startAndSignal(out: string, signal: NodeJS.Signals) {
+  const args = ['--import', 'tsx', join(root, 'cli', 'main.ts'), 'batch', at('manifest.csv'), '--out', out];
+  const child = spawn(
+    process.execPath,
+    [...args, '--settings', at('settings.json'), '--jobs', '1', '--no-report'],
+    {
+      cwd: root,
+      stdio: ['ignore', 'ignore', 'pipe'],
+    },
+  );
+  let stderr = '';
+  child.stderr!.on('data', (d) => (stderr += d));
+  const exited = new Promise<{ code: number | null; stderr: string }>((resolve) =>
+    child.on('exit', (code) => resolve({ code, stderr })),
+  );
+  const journal = join(out, '.journal.ndjson');
+  await new Promise<void>((resolve, reject) => {
+    const started = Date.now();
+    const poll = setInterval(() => {
+      const lines = existsSync(journal) ? readFileSync(journal, 'utf8').split('\n').length - 1 : 0;
+      if (lines >= 3) {
+        clearInterval(poll);
+        child.kill(signal);
+        resolve();
+      } else if (Date.now() - started > 60_000) {
+        clearInterval(poll);
+        reject(new Error('the batch never got going'));
+      }
+    }, 5);
+  });
+  return { exited };
+}
+
 describe('lumirate batch', () => {
   let clean: SampleResult[];
 
@@ -241,43 +275,8 @@ describe('lumirate batch', () => {
 
   it('a killed batch leaves no partial output, and --resume finishes it to the clean result', async () => {
     const out = at('killed');
-    const child = spawn(
-      process.execPath,
-      [
-        '--import',
-        'tsx',
-        join(root, 'cli', 'main.ts'),
-        'batch',
-        at('manifest.csv'),
-        '--out',
-        out,
-        '--settings',
-        at('settings.json'),
-        '--jobs',
-        '1',
-        '--no-report',
-      ],
-      {
-        cwd: root,
-        stdio: 'ignore',
-      },
-    );
-    const journal = join(out, '.journal.ndjson');
-    await new Promise<void>((resolve, reject) => {
-      const started = Date.now();
-      const poll = setInterval(() => {
-        const lines = existsSync(journal) ? readFileSync(journal, 'utf8').split('\n').length - 1 : 0;
-        if (lines >= 3) {
-          clearInterval(poll);
-          child.kill('SIGKILL');
-          resolve();
-        } else if (Date.now() - started > 60_000) {
-          clearInterval(poll);
-          reject(new Error('the batch never got going'));
-        }
-      }, 5);
-    });
-    await new Promise((resolve) => child.on('exit', resolve));
+    const child = await startAndSignal(out, 'SIGKILL');
+    await child.exited;
     // Final outputs are written only at the end, atomically: after a kill they are absent, never partial.
     for (const name of ['results.json', 'results.csv', 'summary.md', 'errors.log'])
       expect(existsSync(join(out, name))).toBe(false);
@@ -296,8 +295,20 @@ describe('lumirate batch', () => {
     expect(r.code).toBe(4);
     expect(r.stderr).toMatch(/reused from the previous run/);
     expect(normalise(readResults(out))).toEqual(normalise(clean));
-    expect(existsSync(journal)).toBe(false);
+    expect(existsSync(join(out, '.journal.ndjson'))).toBe(false);
     expect(readdirSync(out).filter((n) => n.includes('.tmp-'))).toEqual([]);
+  });
+
+  it('Ctrl-C stops cleanly: finished samples are written out, the journal kept, exit 130', async () => {
+    const out = at('interrupted');
+    const { code, stderr } = await (await startAndSignal(out, 'SIGINT')).exited;
+    expect(code).toBe(130);
+    expect(stderr).toMatch(/run again with --resume to finish them/);
+    const kept = readResults(out);
+    expect(kept.length).toBeGreaterThanOrEqual(3);
+    expect(kept.length).toBeLessThan(15);
+    expect(normalise(kept)).toEqual(normalise(clean.filter((c) => kept.some((k) => k.sample === c.sample))));
+    expect(existsSync(join(out, '.journal.ndjson'))).toBe(true);
   });
 
   it('--resume reruns only what changed', () => {
@@ -323,7 +334,7 @@ describe('lumirate batch', () => {
 });
 
 describe('lumirate batch --init', () => {
-  it('writes a settings template that the batch accepts, and will not overwrite it', () => {
+  it('writes the commented settings template and will not overwrite it', () => {
     const file = at('template.json');
     expect(lumirate('batch', '--init', file).code).toBe(0);
     expect(readFileSync(file, 'utf8')).toMatch(/^\/\/ lumirate batch settings/);
