@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { expectedHistogram, type ArrivalModel } from '../../src/sim/expectedHistogram.js';
 import { chi2QuantileWilsonHilferty, Z_0999 } from './statistics.js';
@@ -66,6 +67,32 @@ describe('expectedHistogram', () => {
       });
       expect(Math.abs(p.reduce((s, x) => s + x, 0) - 1)).toBeLessThan(1e-12);
     }
+  });
+
+  it('conserves probability for any lifetime, IRF width and position when the period equals the window', () => {
+    // Property: with folding at a period equal to the window every photon lands somewhere (exact).
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0.02, max: 60, noNaN: true }),
+        fc.double({ min: 0.01, max: 0.6, noNaN: true }),
+        fc.double({ min: -2, max: 14, noNaN: true }),
+        fc.double({ min: -0.3, max: 0.3, noNaN: true }),
+        (tauNs, sigmaNs, centerNs, offsetNs) => {
+          const p = expectedHistogram({
+            channels: 250,
+            binWidthNs: 0.05,
+            periodNs: 12.5,
+            jitter: { kind: 'gaussian', centerNs, sigmaNs },
+            branches: [
+              { weight: 0.9, offsetNs, terms: [{ coef: 1, tauNs, kind: 'exp' }] },
+              { weight: 0.1, offsetNs: 0, terms: [] },
+            ],
+          });
+          expect(Math.abs(p.reduce((s, x) => s + x, 0) - 1)).toBeLessThan(1e-10);
+        },
+      ),
+      { numRuns: 40, seed: 11 },
+    );
   });
 
   it('loses exactly the share e^(−(W − t0)/τ) past a single-pulse window (narrow IRF)', () => {

@@ -76,6 +76,13 @@ describe('simulateTcspc against the dense-quadrature expectation (χ² test)', (
     expect(chi2).toBeGreaterThan(chi2QuantileWilsonHilferty(cells, Z_0999));
   });
 
+  it('sees the folding: the same χ² fails against the single-pulse expectation of the same decay', () => {
+    const { total } = replicate(full, K, 100);
+    const single = replicate({ ...full, periodNs: null }, 1, 999).expected.map((x) => x * K);
+    const { chi2, cells } = pearsonChi2(total, single);
+    expect(chi2).toBeGreaterThan(chi2QuantileWilsonHilferty(cells, Z_0999));
+  });
+
   it('matches for a measured IRF read as uniform within its bins, single pulse, amplitude fractions', () => {
     // A made-up measured IRF on a coarser grid than the decay and offset from it, so that bins of the
     // two do not line up: a skewed peak with a small late bump.
