@@ -1,6 +1,6 @@
 import type { Command } from 'commander';
 import { InputError } from '../../src/errors.js';
-import { metadataPeriodNs } from '../../src/io/metadata.js';
+import { summariseMetadata } from '../../src/io/metadata.js';
 import { parseTimeUnit } from '../../src/io/columnNames.js';
 import type { Histogram, Spectrum, SpectrumAxis } from '../../src/io/types.js';
 import type { TimeUnit } from '../../shared/units.js';
@@ -43,9 +43,21 @@ export interface HistogramInspection {
   peakChannel: number;
   peakTimeNs: number;
   periodNs: number | null;
+  sample: string | null;
+  countRatePerS: number | null;
+  /** Detector count rate × period: the share of excitation pulses that yield a count. */
+  detectionsPerPulse: number | null;
+  excitationNm: number | null;
+  emissionNm: number | null;
   metadata: Record<string, string>;
   warnings: string[];
 }
+
+/**
+ * Above this share of pulses with a detection, pile-up distorts a TCSPC histogram noticeably
+ * (common practice: keep it below 1–5 %).
+ */
+const PILE_UP_SHARE = 0.05;
 
 /** What `inspect --spectrum … --json` prints. */
 export interface SpectrumInspection {
@@ -120,6 +132,15 @@ export function inspectHistogram(h: Histogram): HistogramInspection {
   }
   const r = h.report;
   const n = h.counts.length;
+  const meta = summariseMetadata(h.metadata, { source: h.source });
+  const detectionsPerPulse =
+    meta.countRatePerS !== null && meta.periodNs !== null ? meta.countRatePerS * meta.periodNs * 1e-9 : null;
+  const warnings = [...h.warnings];
+  if (detectionsPerPulse !== null && detectionsPerPulse > PILE_UP_SHARE) {
+    warnings.push(
+      `the detector count rate is ${(100 * detectionsPerPulse).toPrecision(2)} % of the excitation rate; above 1–5 % pile-up shortens the apparent lifetime`,
+    );
+  }
   return {
     source: h.source,
     layout: r?.layout ?? 'in memory',
@@ -139,9 +160,14 @@ export function inspectHistogram(h: Histogram): HistogramInspection {
     peakCounts: peak,
     peakChannel,
     peakTimeNs: h.timeNs[peakChannel],
-    periodNs: metadataPeriodNs(h.metadata, { source: h.source }) ?? null,
+    periodNs: meta.periodNs,
+    sample: meta.sample,
+    countRatePerS: meta.countRatePerS,
+    detectionsPerPulse,
+    excitationNm: meta.excitationNm,
+    emissionNm: meta.emissionNm,
     metadata: h.metadata,
-    warnings: h.warnings,
+    warnings,
   };
 }
 
@@ -202,7 +228,7 @@ export function describeHistogram(i: HistogramInspection): string {
         ? `table: time column '${i.timeColumn}' (${i.timeUnit}), counts column '${i.countsColumn}'`
         : `counts only: column '${i.countsColumn}'`;
   return [
-    `${i.source}`,
+    `${i.source}${i.sample ? ` (sample ${i.sample})` : ''}`,
     lines([
       ['layout', layout],
       [
@@ -216,6 +242,12 @@ export function describeHistogram(i: HistogramInspection): string {
         `total ${fmt(i.totalCounts)}, peak ${fmt(i.peakCounts)} in channel ${i.peakChannel} at ${fmt(i.peakTimeNs)} ns`,
       ],
       ['period', i.periodNs === null ? 'not given' : `${fmt(i.periodNs)} ns (from metadata)`],
+      [
+        'count rate',
+        i.countRatePerS === null
+          ? 'not given'
+          : `${fmt(i.countRatePerS)} /s${i.detectionsPerPulse === null ? '' : `, ${fmt(100 * i.detectionsPerPulse)} % of pulses`}`,
+      ],
       ['metadata', metadataLines(i.metadata)],
       ['warnings', i.warnings],
     ]),

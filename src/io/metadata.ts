@@ -74,6 +74,8 @@ function findScaled(
   units: Record<string, number>,
   ctx: MetadataContext,
   example: string,
+  /** Skip, rather than refuse, a bare `<stem>` key whose value carries no known unit (free text). */
+  lenientBare = false,
 ): { key: string; scaled: number }[] {
   const out: { key: string; scaled: number }[] = [];
   for (const [key, value] of Object.entries(meta)) {
@@ -82,7 +84,10 @@ function findScaled(
       let unit: string;
       if (key === stem) {
         unit = parsed.unit;
-        if (!(unit in units)) throw bad(key, value, ctx, `a value with a unit (for example "${example}")`);
+        if (!(unit in units)) {
+          if (lenientBare) continue;
+          throw bad(key, value, ctx, `a value with a unit (for example "${example}")`);
+        }
       } else if (key.startsWith(`${stem}_`) && key.slice(stem.length + 1) in units) {
         unit = key.slice(stem.length + 1);
         if (parsed.unit !== '') throw bad(key, value, ctx, `a plain number of ${unit}`);
@@ -172,4 +177,75 @@ export function metadataNumber(
   const v = Number(num);
   if (num === '' || unit !== '' || !Number.isFinite(v)) throw bad(key, value, ctx, 'a plain number');
   return v;
+}
+
+/** Counts per second in each spelling of a count-rate unit. */
+const COUNT_RATE_PER_S: Record<string, number> = {
+  per_s: 1,
+  cps: 1,
+  hz: 1,
+  's-1': 1,
+  kcps: 1e3,
+  khz: 1e3,
+  mcps: 1e6,
+  mhz: 1e6,
+};
+const COUNT_RATE_STEMS = ['count_rate', 'detector_count_rate', 'detector_rate', 'detection_rate', 'cfd_rate'];
+
+/**
+ * Detector count rate in counts per second (`count_rate_per_s`, `count_rate_kcps`,
+ * `detector_count_rate: 25 kcps` …), or undefined. Used to judge pile-up against the excitation rate.
+ */
+export function metadataCountRatePerS(
+  meta: Record<string, string>,
+  ctx: MetadataContext = {},
+): number | undefined {
+  const found = findScaled(meta, COUNT_RATE_STEMS, COUNT_RATE_PER_S, ctx, '25 kcps', true).map(
+    ({ key, scaled }) => ({
+      key,
+      ns: scaled,
+    }),
+  );
+  return agreed(found, 'count rate', meta, ctx)?.ns;
+}
+
+const NM: Record<string, number> = { nm: 1 };
+const WAVELENGTH_STEMS: Record<'excitation' | 'emission', string[]> = {
+  excitation: ['excitation', 'excitation_wavelength', 'ex', 'lambda_ex', 'exc'],
+  emission: ['emission', 'emission_wavelength', 'em', 'lambda_em', 'detection_wavelength'],
+};
+
+/** Excitation or emission (detection) wavelength in nm (`excitation_nm: 405`, `emission: 520 nm` …), or undefined. */
+export function metadataWavelengthNm(
+  meta: Record<string, string>,
+  which: 'excitation' | 'emission',
+  ctx: MetadataContext = {},
+): number | undefined {
+  const found = findScaled(meta, WAVELENGTH_STEMS[which], NM, ctx, '405 nm', true).map(({ key, scaled }) => ({
+    key,
+    ns: scaled,
+  }));
+  return agreed(found, `${which} wavelength`, meta, ctx)?.ns;
+}
+
+/** The metadata lumirate understands, read and checked in one go; absent keys are null. */
+export interface MetadataSummary {
+  sample: string | null;
+  binWidthNs: number | null;
+  periodNs: number | null;
+  countRatePerS: number | null;
+  excitationNm: number | null;
+  emissionNm: number | null;
+}
+
+export function summariseMetadata(meta: Record<string, string>, ctx: MetadataContext = {}): MetadataSummary {
+  const sampleKey = ['sample', 'sample_name', 'name'].find((k) => meta[k] !== undefined);
+  return {
+    sample: sampleKey ? meta[sampleKey] : null,
+    binWidthNs: metadataBinWidthNs(meta, ctx) ?? null,
+    periodNs: metadataPeriodNs(meta, ctx) ?? null,
+    countRatePerS: metadataCountRatePerS(meta, ctx) ?? null,
+    excitationNm: metadataWavelengthNm(meta, 'excitation', ctx) ?? null,
+    emissionNm: metadataWavelengthNm(meta, 'emission', ctx) ?? null,
+  };
 }

@@ -6,6 +6,7 @@ import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
 import { readHistogramFile, readSpectrumFile } from '../../cli/readInput.js';
+import { inspectHistogram } from '../../cli/commands/inspect.js';
 
 const run = promisify(execFile);
 const root = join(import.meta.dirname, '..', '..');
@@ -59,6 +60,7 @@ describe('lumirate inspect', () => {
     });
     expect(j.binWidthNs).toBeCloseTo(0.0122, 12);
     expect(j.metadata).toMatchObject({ sample: 'demo-A', excitation_nm: '405' });
+    expect(j).toMatchObject({ sample: 'demo-A', excitationNm: 405, emissionNm: null, countRatePerS: null });
     expect(j).toMatchObject({
       delimiter: 'comma',
       decimalMark: '.',
@@ -131,6 +133,27 @@ describe('lumirate inspect', () => {
     expect(missing).toMatchObject({ code: 2, stderr: 'error: nope.csv: no such file\n' });
     expect(badOption.code).toBe(2);
     expect(badOption.stderr).toMatch(/^error: --bin-width-ns 'wide' must be a positive number/);
+  });
+});
+
+describe('inspectHistogram', () => {
+  it('warns about pile-up when more than 5 % of pulses give a detection', () => {
+    // Keep the detection rate below 1–5 % of the excitation rate (common practice in TCSPC; see
+    // REFERENCE-VALUES.md §11). 1.5e6 counts/s at 20 MHz is 7.5 %; 2.5e4 counts/s at 80 MHz is 0.03 %.
+    writeFileSync(
+      join(dir, 'fast.csv'),
+      '# rep_rate_mhz: 20\n# count_rate_kcps: 1500\ntime_ns,counts\n0,1\n1,2\n',
+    );
+    const fast = inspectHistogram(readHistogramFile(join(dir, 'fast.csv')));
+    expect(fast.detectionsPerPulse).toBeCloseTo(0.075, 12);
+    expect(fast.warnings.join()).toMatch(/7\.5 % of the excitation rate/);
+    writeFileSync(
+      join(dir, 'slow.csv'),
+      '# rep_rate_mhz: 80\n# count_rate_per_s: 2.5e4\ntime_ns,counts\n0,1\n1,2\n',
+    );
+    const slow = inspectHistogram(readHistogramFile(join(dir, 'slow.csv')));
+    expect(slow.detectionsPerPulse).toBeCloseTo(3.125e-4, 12);
+    expect(slow.warnings).toEqual([]);
   });
 });
 

@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { metadataBinWidthNs, metadataNumber, metadataPeriodNs } from '../../src/io/metadata.js';
+import {
+  metadataBinWidthNs,
+  metadataCountRatePerS,
+  metadataNumber,
+  metadataPeriodNs,
+  metadataWavelengthNm,
+  summariseMetadata,
+} from '../../src/io/metadata.js';
 import { readTextTable } from '../../src/io/textTable.js';
 import { InputError } from '../../src/errors.js';
 import { expectInputError } from './expectInputError.js';
@@ -90,5 +97,43 @@ describe('metadata keys', () => {
     const t = readTextTable('# period_ns: 12.5\n# period_ns: 25\n1\n', 'm.txt');
     expect(t.metadata.period_ns).toBe('25');
     expect(t.warnings.join()).toMatch(/given twice \(line 1: '12\.5', line 2: '25'\)/);
+  });
+});
+
+describe('summariseMetadata', () => {
+  it('reads sample, bin width, period, count rate and wavelengths, null where absent', () => {
+    const meta = {
+      sample: 'demo-A',
+      bin_width_ps: '12.2',
+      rep_rate_mhz: '80',
+      count_rate_kcps: '25',
+      excitation_nm: '405',
+      emission: '520 nm',
+    };
+    expect(summariseMetadata(meta)).toEqual({
+      sample: 'demo-A',
+      binWidthNs: expect.closeTo(0.0122, 15),
+      periodNs: expect.closeTo(12.5, 12),
+      countRatePerS: 25000,
+      excitationNm: 405,
+      emissionNm: 520,
+    });
+    expect(summariseMetadata({})).toEqual({
+      sample: null,
+      binWidthNs: null,
+      periodNs: null,
+      countRatePerS: null,
+      excitationNm: null,
+      emissionNm: null,
+    });
+  });
+
+  it('keeps free text under a bare wavelength or rate key as text, but refuses a bad number under a key with a unit', () => {
+    expect(metadataWavelengthNm({ excitation: 'pulsed diode laser' }, 'excitation')).toBeUndefined();
+    expect(() => metadataWavelengthNm({ excitation_nm: 'blue' }, 'excitation')).toThrow(InputError);
+    expect(metadataCountRatePerS({ count_rate_per_s: '2e4' })).toBe(2e4);
+    expect(() => metadataCountRatePerS({ count_rate_cps: '2e4', count_rate_kcps: '40' })).toThrow(
+      /disagrees on the count rate/,
+    );
   });
 });
