@@ -32,8 +32,13 @@ export interface PoolTask {
 
 /**
  * A fixed set of worker threads fed from a queue. Each worker holds up to `inFlight` tasks so that it
- * never waits for the main thread between two of them. Replies arrive in completion order. A worker
- * that dies (not a task that throws: workers report those as results) fails the run.
+ * never waits for the main thread between two of them. Replies arrive in completion order.
+ *
+ * A worker that dies (out of memory, a crash in native code; a task that throws is reported by the
+ * worker itself as a result) loses the task it was running: the oldest one it had not answered, since
+ * a worker runs its tasks in the order received. With `onLost`, that task is reported there, the
+ * worker's other tasks go back to the queue and a fresh worker takes its place, so one pathological
+ * sample cannot stop a batch. Without `onLost`, the run fails.
  */
 export class WorkerPool<T extends PoolTask, R extends { id: number }> {
   private workers: Worker[] = [];
@@ -47,7 +52,7 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
   ) {}
 
   /** Runs every task; `onReply` sees each reply as it arrives. Resolves when all are done or `stop()` was called. */
-  run(tasks: T[], onReply: (reply: R) => void): Promise<void> {
+  run(tasks: T[], onReply: (reply: R) => void, onLost?: (task: T, why: string) => void): Promise<void> {
     const queue = tasks.slice().reverse();
     let outstanding = tasks.length;
     return new Promise<void>((resolve, reject) => {
@@ -62,19 +67,38 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
       };
       this.onStop = () => finish();
       if (outstanding === 0) return finish();
-      const n = Math.max(1, Math.min(this.size, tasks.length));
-      const feed = (w: Worker, busy: { count: number }) => {
-        while (!this.stopped && busy.count < this.inFlight && queue.length) {
-          w.postMessage(queue.pop());
-          busy.count++;
-        }
-      };
-      for (let k = 0; k < n; k++) {
+      const spawnOne = () => {
         const w = startWorker(this.moduleUrl, this.workerData);
-        const busy = { count: 0 };
+        const pending: T[] = [];
+        let dead = false;
         this.workers.push(w);
+        const feed = () => {
+          while (!this.stopped && pending.length < this.inFlight && queue.length) {
+            const task = queue.pop()!;
+            pending.push(task);
+            w.postMessage(task);
+          }
+        };
+        const lost = (why: string) => {
+          if (dead || this.stopped) return;
+          dead = true;
+          this.workers = this.workers.filter((x) => x !== w);
+          if (pending.length === 0) return;
+          if (!onLost) return finish(new Error(why));
+          const [running, ...rest] = pending;
+          for (const t of rest.reverse()) queue.push(t);
+          outstanding--;
+          try {
+            onLost(running, why);
+          } catch (err) {
+            return finish(err as Error);
+          }
+          if (outstanding === 0) return finish();
+          if (queue.length) spawnOne();
+        };
         w.on('message', (reply: R) => {
-          busy.count--;
+          const at = pending.findIndex((t) => t.id === reply.id);
+          if (at >= 0) pending.splice(at, 1);
           outstanding--;
           if (this.stopped) return;
           try {
@@ -83,17 +107,13 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
             return finish(err as Error);
           }
           if (outstanding === 0) return finish();
-          feed(w, busy);
+          feed();
         });
-        w.on('error', (err) => {
-          if (!this.stopped) finish(err);
-        });
-        w.on('exit', (code) => {
-          if (!this.stopped && outstanding > 0)
-            finish(new Error(`a worker thread stopped with code ${code}`));
-        });
-        feed(w, busy);
-      }
+        w.on('error', (err) => lost(`the worker running it failed: ${err.message}`));
+        w.on('exit', (code) => lost(`a worker thread stopped with code ${code}`));
+        feed();
+      };
+      for (let k = 0; k < Math.max(1, Math.min(this.size, tasks.length)); k++) spawnOne();
     });
   }
 

@@ -233,15 +233,27 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     pool.stop();
   });
   try {
-    await pool.run(tasks, (reply) => {
-      for (const r of reply.results) {
-        const at = journal.append(r.json);
-        entries.push({ brief: r.brief, json: () => journal.read(at) });
-        done++;
-        if (r.brief.status === 'failed') failedNow++;
-      }
-      progress.update(done, failedNow);
-    });
+    const record = (json: string, brief: SampleResult) => {
+      const at = journal.append(json);
+      entries.push({ brief, json: () => journal.read(at) });
+      done++;
+      if (brief.status === 'failed') failedNow++;
+    };
+    await pool.run(
+      tasks,
+      (reply) => {
+        for (const r of reply.results) record(r.json, r.brief);
+        progress.update(done, failedNow);
+      },
+      // A sample that takes its worker down (out of memory …) fails alone; the batch goes on.
+      (task, why) => {
+        for (const m of task.members) {
+          const r = failedSample(m.settings, new Error(`${why} while fitting this sample`), ctx, m.settings);
+          record(JSON.stringify(r), r);
+        }
+        progress.update(done, failedNow);
+      },
+    );
   } finally {
     progress.finish();
     await pool.close();

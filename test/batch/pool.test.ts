@@ -40,3 +40,20 @@ describe('WorkerPool', () => {
     expect(seen).toEqual([0, 1, 2]);
   });
 });
+
+describe('WorkerPool with onLost', () => {
+  it('reports the task a dying worker was running, requeues the rest and finishes the run', async () => {
+    const pool = new WorkerPool<{ id: number; n: number }, { id: number; value: number }>(squareWorker, 1);
+    const tasks = [1, 2, -1, 3, 4].map((n, id) => ({ id, n }));
+    const replies: number[] = [];
+    const lost: { id: number; why: string }[] = [];
+    await pool.run(
+      tasks,
+      (r) => replies.push(r.id),
+      (t, why) => lost.push({ id: t.id, why }),
+    );
+    await pool.close();
+    expect(lost).toEqual([{ id: 2, why: 'a worker thread stopped with code 7' }]);
+    expect(replies.sort()).toEqual([0, 1, 3, 4]);
+  });
+});
