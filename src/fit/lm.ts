@@ -149,26 +149,44 @@ function gradientAndHessian(
       hW[i] = 2 * inv;
     }
   }
-  // One pass over the points: each point's Jacobian column is read once (the rows are long, P is small).
-  g.fill(0);
-  H.fill(0);
-  const col = hessCol.length >= P ? hessCol : new Float64Array(P);
-  for (let i = 0; i < N; i++) {
-    const d = dRho[i];
-    const w = hW[i];
-    for (let a = 0; a < P; a++) col[a] = jac[a * N + i];
-    for (let a = 0; a < P; a++) {
-      const ja = col[a];
-      g[a] += d * ja;
-      const wa = w * ja;
-      const row = a * P;
-      for (let b = 0; b <= a; b++) H[row + b] += wa * col[b];
-    }
-  }
-  for (let a = 0; a < P; a++) for (let b = 0; b < a; b++) H[b * P + a] = H[a * P + b];
+  weightedGram(jac, P, N, hW, dRho, 1, H, g);
 }
 
-const hessCol = new Float64Array(16);
+/**
+ * Weighted Gram matrix and projection of C columns packed row-wise in `cols` (cols[a·N + i]):
+ * gram[a·C + b] = Σᵢ wᵢ·cₐᵢ·c_bᵢ and proj[a] = Σᵢ vᵢ·cₐᵢ over every `stride`-th point, each term
+ * multiplied by `stride`. One pass over the points, so each column value is read once (the columns
+ * are long, C is small). Overwrites gram (C×C) and proj (C).
+ */
+export function weightedGram(
+  cols: Float64Array,
+  C: number,
+  N: number,
+  w: Float64Array,
+  v: Float64Array,
+  stride: number,
+  gram: Float64Array,
+  proj: Float64Array,
+): void {
+  gram.fill(0, 0, C * C);
+  proj.fill(0, 0, C);
+  const col = C <= gramCol.length ? gramCol : new Float64Array(C);
+  for (let i = 0; i < N; i += stride) {
+    const wi = w[i] * stride;
+    const vi = v[i] * stride;
+    for (let a = 0; a < C; a++) col[a] = cols[a * N + i];
+    for (let a = 0; a < C; a++) {
+      const ca = col[a];
+      proj[a] += vi * ca;
+      const wa = wi * ca;
+      const row = a * C;
+      for (let b = 0; b <= a; b++) gram[row + b] += wa * col[b];
+    }
+  }
+  for (let a = 0; a < C; a++) for (let b = 0; b < a; b++) gram[b * C + a] = gram[a * C + b];
+}
+
+const gramCol = new Float64Array(16);
 
 /**
  * Cholesky solve of A x = b for a symmetric P×P matrix (row-major). Works in `L` (scratch, P×P).

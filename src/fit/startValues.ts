@@ -1,5 +1,5 @@
 import type { DecayModel } from './decayModel.js';
-import { choleskySolve } from './lm.js';
+import { choleskySolve, weightedGram } from './lm.js';
 
 /**
  * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest
@@ -144,23 +144,11 @@ export function gridStarts(
   const stride = Math.max(1, Math.floor(nFit / 1000));
   let yWy = 0;
   for (let i = 0; i < nFit; i += stride) yWy += stride * w[i] * y[i] * y[i];
-  // One pass over the channels for the whole Gram matrix, columns packed in one array (C is small).
+  // Gram matrix and projection of the data in one pass, columns packed in one array.
   const flat = new Float64Array(C * nFit);
   for (let a = 0; a < C; a++) flat.set(columns[a], a * nFit);
-  const v = new Float64Array(C);
-  for (let i = 0; i < nFit; i += stride) {
-    const wi = w[i] * stride;
-    const wy = wi * y[i];
-    for (let a = 0; a < C; a++) v[a] = flat[a * nFit + i];
-    for (let a = 0; a < C; a++) {
-      const va = v[a];
-      rhs[a] += wy * va;
-      const wa = wi * va;
-      const row = a * C;
-      for (let b = 0; b <= a; b++) gram[row + b] += wa * v[b];
-    }
-  }
-  for (let a = 0; a < C; a++) for (let b = 0; b < a; b++) gram[b * C + a] = gram[a * C + b];
+  const wy = Float64Array.from(y, (yi, i) => w[i] * yi);
+  weightedGram(flat, C, nFit, w, wy, stride, gram, rhs);
 
   // Every ascending choice of grid lifetimes for the free slots.
   const combos: number[][] = [];

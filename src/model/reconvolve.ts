@@ -183,24 +183,7 @@ export function shiftIrf(
   dOut: Float64Array | null,
   slopes: Float64Array | null = null,
 ): void {
-  const n = irf.length;
-  if (slopes) {
-    shiftWithSlopes(irf, slopes, shiftChannels, out, dOut);
-    return;
-  }
-  const m = Math.floor(shiftChannels);
-  const f = shiftChannels - m;
-  const c = 0.5 * f * (1 - f);
-  const dc = 0.5 * (1 - 2 * f);
-  for (let k = 0; k < n; k++) {
-    const j0 = k - m;
-    const j1 = j0 - 1;
-    const a = j0 >= 0 && j0 < n ? irf[j0] : 0;
-    const b = j1 >= 0 && j1 < n ? irf[j1] : 0;
-    const slopeDiff = c !== 0 || dOut ? slopeAt(irf, j1) - slopeAt(irf, j0) : 0;
-    out[k] = (1 - f) * a + f * b + c * slopeDiff;
-    if (dOut) dOut[k] = b - a + dc * slopeDiff;
-  }
+  shiftWithSlopes(irf, slopes ?? irfSlopes(irf), shiftChannels, out, dOut);
 }
 
 /** Limited slopes dₖ of every channel (see the module comment), for repeated shifts of one IRF. */
