@@ -493,6 +493,7 @@ export function simulateTcspc(options: SimulationOptions): SimulatedMeasurement 
   const rngDecay = root.fork(1);
   const rngIrf = root.fork(2);
   const rngBackground = root.fork(3);
+  const rngIrfBackground = root.fork(4);
 
   // Decay: choose the component (or scatter) by its share, then add jitter, shift and delay.
   const nComp = r.taus.length;
@@ -503,6 +504,8 @@ export function simulateTcspc(options: SimulationOptions): SimulatedMeasurement 
     cumulative[i] = acc;
   }
   cumulative[nComp] = Infinity; // scatter takes the rest
+  // Without scatter, rounding in the running sum must not send the odd photon to it.
+  if (r.scatterFraction === 0) cumulative[nComp - 1] = Infinity;
   const jitter = jitterSampler(r.irf, rngDecay);
   const taus = r.taus;
   const shift = r.colorShiftNs;
@@ -522,7 +525,7 @@ export function simulateTcspc(options: SimulationOptions): SimulatedMeasurement 
   const irfPhotonsDrawn = drawCount(rngIrf, meanIrfEmitted, r.fixedPhotonNumber);
   const irfCounts = new Float64Array(r.channels);
   binPhotons(irfCounts, irfPhotonsDrawn, irfJitter, r.binWidthNs, r.periodNs);
-  addBackground(irfCounts, r.irfBackgroundPerChannel, rngBackground);
+  addBackground(irfCounts, r.irfBackgroundPerChannel, rngIrfBackground);
 
   const expected = new Float64Array(r.channels);
   const expectedIrf = new Float64Array(r.channels);

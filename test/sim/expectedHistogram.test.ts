@@ -148,7 +148,7 @@ describe('expectedHistogram', () => {
   });
 });
 
-describe('chi2QuantileWilsonHilferty (test helper)', () => {
+describe('chi2QuantileWilsonHilferty (test utility)', () => {
   it('is close to tabulated 99.9 % quantiles of χ²', () => {
     // χ²(0.999) for ν = 10, 50, 100: 29.588, 86.661, 149.449 (standard χ² tables; VERIFIED with
     // scipy.stats.chi2.ppf, REFERENCE-VALUES §14).

@@ -234,10 +234,13 @@ describe('simulateTcspc reproducibility and bookkeeping', () => {
     expect(Array.from(a.decay.counts)).not.toEqual(Array.from(c.decay.counts));
   });
 
-  it('keeps the decay noise when only the IRF settings change (separate random streams)', () => {
+  it('keeps each measurement’s noise when only the other one’s settings change (separate streams)', () => {
     const a = simulateTcspc(options);
     const b = simulateTcspc({ ...options, irfCounts: 5000 });
     expect(Array.from(a.decay.counts)).toEqual(Array.from(b.decay.counts));
+    const c = simulateTcspc({ ...options, irfBackgroundPerChannel: 2 });
+    const d = simulateTcspc({ ...options, irfBackgroundPerChannel: 2, backgroundPerChannel: 5 });
+    expect(Array.from(c.irf.counts)).toEqual(Array.from(d.irf.counts));
   });
 
   it('reports both amplitude and intensity fractions of the truth', () => {
