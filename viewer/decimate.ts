@@ -1,7 +1,8 @@
 /**
- * Display-only thinning of long curves: per bucket of channels keep the first, the lowest, the highest
- * and the last point of the reference series, and every series at those same channels. Peaks, dips and
- * edges survive; the fit never sees this.
+ * Display-only thinning of long curves: per bucket of channels keep the lowest and the highest point of
+ * the reference series (plus the very first and last channel), and every series at those same
+ * channels. With about one bucket per screen pixel, peaks, dips and edges look as they would in full;
+ * the fit never sees this.
  */
 
 /** Curves at or below this length are drawn as they are. */
@@ -13,7 +14,7 @@ export const DECIMATE_ABOVE = 2000;
  */
 export function decimationIndices(
   reference: ArrayLike<number | null>,
-  buckets = 1000,
+  buckets = 800,
   above = DECIMATE_ABOVE,
 ): number[] {
   const n = reference.length;
@@ -32,11 +33,12 @@ export function decimationIndices(
       if (iMin < 0 || v < (reference[iMin] as number)) iMin = i;
       if (iMax < 0 || v > (reference[iMax] as number)) iMax = i;
     }
-    const set = new Set([lo, hi - 1]);
-    if (iMin >= 0) set.add(iMin);
-    if (iMax >= 0) set.add(iMax);
-    keep.push(...[...set].sort((a, b) => a - b));
+    if (iMin < 0) continue;
+    if (iMin !== iMax) keep.push(Math.min(iMin, iMax), Math.max(iMin, iMax));
+    else keep.push(iMin);
   }
+  if (keep[0] !== 0) keep.unshift(0);
+  if (keep[keep.length - 1] !== n - 1) keep.push(n - 1);
   return keep;
 }
 

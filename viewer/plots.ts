@@ -5,7 +5,7 @@
  */
 import type uPlotType from 'uplot';
 import type { FitCurves, SeriesResult } from '../shared/schema.js';
-import { decimationIndices, pick } from './decimate.js';
+import { DECIMATE_ABOVE, decimationIndices, pick } from './decimate.js';
 import { STYLE } from './palette.js';
 import { el, download, safeFileName } from './dom.js';
 
@@ -175,29 +175,88 @@ function tickLabels(_u: uPlotType, splits: number[], _axis: number, _space: numb
 const timeAxis = (label: string): uPlotType.Axis => ({ label, labelSize: 20, size: 40 });
 const valueAxis = (label: string, size = 70): uPlotType.Axis => ({ label, labelSize: 20, size });
 
+/** First index whose time is ≥ t (binary search on an ascending axis). */
+function lowerIndex(timeNs: number[], t: number): number {
+  let lo = 0;
+  let hi = timeNs.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (timeNs[mid] < t) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/**
+ * Columns for the channels [lo, hi] of a curve set, thinned by the extremes of `reference` when long.
+ * Zooming calls this again for the visible channels, so a zoomed view shows every channel once it is
+ * narrow enough.
+ */
+function windowColumns(
+  timeNs: number[],
+  reference: (number | null)[],
+  columns: (number | null)[][],
+  lo: number,
+  hi: number,
+): uPlotType.AlignedData {
+  const local = decimationIndices(reference.slice(lo, hi + 1));
+  const keep = local.map((k) => k + lo);
+  return [pick(timeNs, keep), ...columns.map((c) => pick(c, keep))] as uPlotType.AlignedData;
+}
+
+/** Redraws a plot's columns for the visible time range whenever its time axis changes. */
+function refineOnZoom(
+  u: uPlotType,
+  timeNs: number[],
+  build: (lo: number, hi: number) => uPlotType.AlignedData,
+): void {
+  if (timeNs.length <= DECIMATE_ABOVE) return;
+  let busy = false;
+  u.hooks.setScale = [
+    ...(u.hooks.setScale ?? []),
+    (self: uPlotType, key: string) => {
+      if (key !== 'x' || busy) return;
+      const { min, max } = self.scales.x;
+      if (min === undefined || max === undefined) return;
+      busy = true;
+      // One channel of margin on each side so the curve reaches the plot edges.
+      const lo = Math.max(0, lowerIndex(timeNs, min) - 1);
+      const hi = Math.min(timeNs.length - 1, lowerIndex(timeNs, max) + 1);
+      // New columns with scales reset, then the chosen range again: uPlot recomputes which points are in
+      // view only when the range changes, and keeping the old range would index the new columns wrongly.
+      self.setData(build(lo, hi), true);
+      self.setScale('x', { min, max });
+      busy = false;
+    },
+  ];
+}
+
 /**
  * Decay, residuals and autocorrelation for one sample. Dragging across the decay or the residuals zooms
- * both time axes together; a double click restores the full range.
+ * both time axes together; a double click restores the full range. Long curves are thinned for
+ * display, each plot by its own extremes (a lone residual spike stays visible), and redrawn from the
+ * full columns for the zoomed range.
  */
 export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampleName: string): PlotHandle[] {
-  const keep = decimationIndices(curves.data);
-  const t = pick(curves.timeNs, keep);
   const base = safeFileName(sampleName);
   const syncKey = `lumirate-time-${Math.random().toString(36).slice(2)}`;
   const cursor: uPlotType.Cursor = { sync: { key: syncKey }, drag: { x: true, y: false } };
+  const last = curves.timeNs.length - 1;
 
   const decaySeries: uPlotType.Series[] = [
     { label: 'Time (ns)' },
     { label: 'Data', ...STYLE.data, points: { show: false } },
   ];
   const floor = logFloor(curves.data);
-  const decayData: (number | null)[][] = [t, positiveOrNull(pick(curves.data, keep), floor)];
+  const decayColumns: (number | null)[][] = [positiveOrNull(curves.data, floor)];
   if (curves.irf.length === curves.data.length) {
     decaySeries.push({ label: 'IRF', ...STYLE.irf, points: { show: false } });
-    decayData.push(positiveOrNull(pick(curves.irf, keep), floor));
+    decayColumns.push(positiveOrNull(curves.irf, floor));
   }
   decaySeries.push({ label: 'Model', ...STYLE.model, points: { show: false } });
-  decayData.push(positiveOrNull(pick(curves.model, keep), floor));
+  decayColumns.push(positiveOrNull(curves.model, floor));
+  const decayWindow = (lo: number, hi: number) =>
+    windowColumns(curves.timeNs, curves.data, decayColumns, lo, hi);
 
   const handles: PlotHandle[] = [];
   const decay = basePlot(
@@ -211,10 +270,12 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
       series: decaySeries,
       cursor,
     },
-    decayData as uPlotType.AlignedData,
+    decayWindow(0, last),
   );
   handles.push(decay);
 
+  const residualWindow = (lo: number, hi: number) =>
+    windowColumns(curves.timeNs, curves.weightedResiduals, [curves.weightedResiduals], lo, hi);
   const residuals = basePlot(
     'Weighted residuals',
     `${base}-residuals`,
@@ -236,9 +297,11 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
       cursor,
       hooks: { draw: [zeroLine] },
     },
-    [t, pick(curves.weightedResiduals, keep)] as uPlotType.AlignedData,
+    residualWindow(0, last),
   );
   handles.push(residuals);
+  refineOnZoom(decay.plot, curves.timeNs, decayWindow);
+  refineOnZoom(residuals.plot, curves.timeNs, residualWindow);
 
   // Zoom one time axis, zoom the other: both show the same channels.
   let syncing = false;

@@ -27,15 +27,18 @@ function lifetimeText(s: SampleResult): string {
 }
 
 /** Pixels of a canvas close to a given colour (the curve's stroke), read back from the canvas itself. */
-async function pixelsNear(selector: string, hex: string): Promise<number[]> {
+async function pixelsNear(selector: string, hex: string, fromX = 0, toX = 1): Promise<number[]> {
   return page.$$eval(
     selector,
-    (canvases, hexColour) => {
+    (canvases, [hex0, x0, x1]) => {
+      const hexColour = String(hex0);
       const r0 = parseInt(hexColour.slice(1, 3), 16);
       const g0 = parseInt(hexColour.slice(3, 5), 16);
       const b0 = parseInt(hexColour.slice(5, 7), 16);
       return (canvases as HTMLCanvasElement[]).map((c) => {
-        const d = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+        const left = Math.floor(c.width * x0);
+        const width = Math.max(1, Math.floor(c.width * x1) - left);
+        const d = c.getContext('2d')!.getImageData(left, 0, width, c.height).data;
         let n = 0;
         for (let i = 0; i < d.length; i += 4)
           if (d[i + 3] > 200 && Math.abs(d[i] - r0) + Math.abs(d[i + 1] - g0) + Math.abs(d[i + 2] - b0) < 60)
@@ -43,7 +46,7 @@ async function pixelsNear(selector: string, hex: string): Promise<number[]> {
         return n;
       });
     },
-    hex,
+    [hex, fromX, toX] as [string, number, number],
   );
 }
 
@@ -184,6 +187,9 @@ describe(`the report in headless Chromium`, () => {
     expect(after[1]).not.toBe(before[1]);
     // The autocorrelation has its own lag axis and is not zoomed.
     expect(after[2]).toBe(before[2]);
+    // The zoomed residuals are drawn across the whole zoomed range, not only part of it.
+    const [rightQuarter] = await pixelsNear('.lr-plots canvas >> nth=1', '#0072B2', 0.75, 0.98);
+    expect(rightQuarter).toBeGreaterThan(100);
   });
 
   it('the table downloads as CSV with one line per shown sample', async () => {
