@@ -118,6 +118,8 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
     }
   }
 
+  assertRepresentableAxis(timeNs, binWidthNs, source);
+
   const countsColumns = table.columns.length - (time ? 1 : 0);
   const report: ImportReport = {
     delimiter: table.delimiter,
@@ -271,6 +273,23 @@ function chooseCountsColumn(
     });
   }
   return index;
+}
+
+/**
+ * The last guard on the promise of a Histogram: a finite, strictly increasing axis. Times so large
+ * that the step vanishes in their rounding, or that overflow on conversion to ns, end here.
+ */
+function assertRepresentableAxis(timeNs: Float64Array, binWidthNs: number, source: string): void {
+  let ok = Number.isFinite(binWidthNs) && binWidthNs > 0;
+  for (let i = 0; ok && i < timeNs.length; i++) {
+    ok = Number.isFinite(timeNs[i]) && (i === 0 || timeNs[i] > timeNs[i - 1]);
+  }
+  if (!ok) {
+    throw new InputError(
+      `its time axis (start ${formatNumber(timeNs[0])} ns, step ${formatNumber(binWidthNs)} ns) cannot be represented: the times are too large for their step`,
+      { file: source },
+    );
+  }
 }
 
 /** Printed precision of a number cell: one unit in its last written digit. */

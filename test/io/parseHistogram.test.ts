@@ -411,3 +411,15 @@ describe('bad input', () => {
     });
   });
 });
+
+describe('extreme axes', () => {
+  it('refuses times that overflow in ns or whose step vanishes in their rounding', () => {
+    expectInputError(() => read('time_s,counts\n0,1\n1e300,2\n'), {
+      file: F,
+      match: /cannot be represented/,
+    });
+    expectInputError(() => read('channel,counts\n1e300,1\n1.0000000000000002e300,2\n', { binWidthNs: 1 }), {
+      file: F,
+    });
+  });
+});
