@@ -270,7 +270,10 @@ export function register(program: Command): void {
       '--irf-tail-fraction <f>',
       'share of IRF photons in the tail, 0–1 (default 0.1 with --irf-tail-ns)',
     )
-    .option('--irf-file <file[#column]>', 'draw the IRF from a measured IRF table instead of the Gaussian')
+    .option(
+      '--irf-file <file[#column]>',
+      'draw the IRF from a measured IRF table instead of the Gaussian; its counts are used as they are, so subtract its background first',
+    )
     .option('--shift-ns <ns>', 'delay of the decay relative to the IRF (colour shift), ns', '0')
     .option('--background <counts>', 'mean background counts per channel in the decay', '0')
     .option('--irf-counts <n>', 'mean photons in the IRF measurement', '100000')
