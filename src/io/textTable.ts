@@ -187,8 +187,11 @@ export function readTextTable(text: string, source: string): TextTable {
 
   const delimiter = detectDelimiter(content[0].text);
   const split = splitLines(content, delimiter, source);
-  const firstNumeric = split[0].every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
-  const header = firstNumeric ? null : split[0].map((c) => c.trim());
+  // A trailing separator (spreadsheet exports) leaves an empty last field on each line: no column.
+  const first =
+    split[0].length > 1 && split[0][split[0].length - 1].trim() === '' ? split[0].slice(0, -1) : split[0];
+  const firstNumeric = first.every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
+  const header = firstNumeric ? null : first.map((c) => c.trim());
   const headerLine = header ? content[0].line : null;
   let dataCells = header ? split.slice(1) : split;
   let dataLines = header ? content.slice(1) : content;
@@ -199,11 +202,9 @@ export function readTextTable(text: string, source: string): TextTable {
     });
   }
 
+  let columns = header ?? first.map((_, j) => `col${j + 1}`);
   // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
   // the word before it when that makes the header as wide as the data.
-  // A trailing separator after the header (spreadsheet exports) names no column.
-  if (header && header.length > 1 && header[header.length - 1] === '') header.pop();
-  let columns = header ?? split[0].map((_, j) => `col${j + 1}`);
   if (header && delimiter === 'whitespace' && header.length !== dataCells[0].length) {
     const joined = content[0].text
       .trim()

@@ -153,6 +153,7 @@ describe('layouts', () => {
   it('ignores blank lines, comment lines between rows and a trailing separator', () => {
     const h = read('time_ns,counts,\n\n0,1,\n# note in the middle\n1,2,\n\n');
     expect(arr(h.counts)).toEqual([1, 2]);
+    expect(arr(read('# time_unit: ns\n0;1;\n1;2;\n').counts)).toEqual([1, 2]);
   });
 
   it('reads quoted header names and cells (RFC 4180 §2 quoting)', () => {
