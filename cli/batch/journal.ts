@@ -78,11 +78,13 @@ export class Journal {
   }
 }
 
-/** Every complete, parseable line of a journal, as JSON text with its parsed value; a torn tail is dropped. */
-export function readJournal(path: string): { text: string; value: unknown }[] {
-  if (!existsSync(path)) return [];
+/**
+ * Every complete, parseable line of a journal, as JSON text with its parsed value, one at a time (a
+ * journal of thousands of samples with curves is never parsed all at once); a torn tail is dropped.
+ */
+export function* readJournal(path: string): Generator<{ text: string; value: unknown }> {
+  if (!existsSync(path)) return;
   const content = readFileSync(path, 'utf8');
-  const out: { text: string; value: unknown }[] = [];
   let start = 0;
   for (;;) {
     const end = content.indexOf('\n', start);
@@ -90,11 +92,13 @@ export function readJournal(path: string): { text: string; value: unknown }[] {
     const text = content.slice(start, end);
     start = end + 1;
     if (text.trim() === '') continue;
+    let value: unknown;
     try {
-      out.push({ text, value: JSON.parse(text) });
+      value = JSON.parse(text);
     } catch {
       // A line torn by a crash and then followed by a later append: skip it, its sample reruns.
+      continue;
     }
+    yield { text, value };
   }
-  return out;
 }

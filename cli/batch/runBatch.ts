@@ -107,22 +107,38 @@ function reusable(prev: SampleResult, p: Prepared, version: string): boolean {
   return now !== null && stableStringify(now) === stableStringify(prev.provenance.inputs);
 }
 
-/** Previous results in outDir: results.json of a finished run, then the journal of an interrupted one (later wins). */
+/**
+ * Each sample's JSON text in a results.json as lumirate writes it (one sample per line between `[`
+ * and `]`), so that a large file is parsed one sample at a time; any other layout is parsed whole.
+ */
+function resultsJsonTexts(text: string, source: string): string[] {
+  const lines = text.split('\n');
+  if (lines[0] === '[' && lines.at(-2) === ']' && lines.at(-1) === '') {
+    return lines.slice(1, -2).map((l) => (l.endsWith(',') ? l.slice(0, -1) : l));
+  }
+  return parseResultsJson(text, source).map((r) => JSON.stringify(r));
+}
+
+/**
+ * Previous results in outDir: results.json of a finished run, then the journal of an interrupted one
+ * (later wins). Kept as JSON text plus the result without its curves, to hold memory down.
+ */
 function previousResults(outDir: string): Map<string, { text: string; value: SampleResult }> {
   const out = new Map<string, { text: string; value: SampleResult }>();
+  const keep = (text: string, value: unknown) => {
+    const r = value as SampleResult;
+    if (r && typeof r.sample === 'string') out.set(r.sample, { text, value: briefOf(r) });
+  };
   const resultsPath = join(outDir, 'results.json');
   if (existsSync(resultsPath)) {
     try {
-      for (const r of parseResultsJson(readFileSync(resultsPath, 'utf8'), resultsPath))
-        out.set(r.sample, { text: JSON.stringify(r), value: r });
+      for (const text of resultsJsonTexts(readFileSync(resultsPath, 'utf8'), resultsPath))
+        keep(text, JSON.parse(text));
     } catch {
       // An unreadable results.json just means nothing to reuse from it.
     }
   }
-  for (const line of readJournal(join(outDir, JOURNAL_NAME))) {
-    const r = line.value as SampleResult;
-    if (r && typeof r.sample === 'string') out.set(r.sample, { text: line.text, value: r });
-  }
+  for (const line of readJournal(join(outDir, JOURNAL_NAME))) keep(line.text, line.value);
   return out;
 }
 
@@ -196,7 +212,7 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     }
     for (const sample of keep) {
       const { text, value } = prev.get(sample)!;
-      entries.push({ brief: briefOf(value), json: () => text });
+      entries.push({ brief: value, json: () => text });
     }
     reused = keep.size;
     toRun = prepared.filter((p) => !keep.has(p.settings.sample));

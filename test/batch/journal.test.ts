@@ -33,13 +33,13 @@ describe('journal', () => {
     expect(JSON.parse(j.read(b))).toEqual({ sample: 'b' });
     expect(JSON.parse(j.read(a))).toEqual({ sample: 'a', x: 'é' });
     j.close();
-    expect(readJournal(path).map((l) => l.value)).toEqual([{ sample: 'a', x: 'é' }, { sample: 'b' }]);
+    expect([...readJournal(path)].map((l) => l.value)).toEqual([{ sample: 'a', x: 'é' }, { sample: 'b' }]);
   });
 
   it('ignores a torn last line, as a kill during a write leaves it', () => {
     const path = join(tempDir(), 'j.ndjson');
     writeFileSync(path, '{"sample":"a"}\n{"sample":"b"}\n{"sample":"c","fit":{"tau');
-    expect(readJournal(path).map((l) => (l.value as { sample: string }).sample)).toEqual(['a', 'b']);
+    expect([...readJournal(path)].map((l) => (l.value as { sample: string }).sample)).toEqual(['a', 'b']);
   });
 
   it('skips a torn line that later appends followed', () => {
@@ -47,7 +47,7 @@ describe('journal', () => {
     writeFileSync(path, '{"sample":"a"}\n{"sam');
     appendFileSync(path, '{"sample":"b"}\n');
     // The torn fragment and the next record share a line that does not parse: both are dropped, so b reruns.
-    expect(readJournal(path).map((l) => (l.value as { sample: string }).sample)).toEqual(['a']);
+    expect([...readJournal(path)].map((l) => (l.value as { sample: string }).sample)).toEqual(['a']);
   });
 });
 
