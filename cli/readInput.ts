@@ -1,7 +1,11 @@
 import { existsSync, readFileSync } from 'node:fs';
 import { InputError } from '../src/errors.js';
 import { decodeText } from '../src/io/decodeText.js';
-import { parseHistogramText, type HistogramParseOptions } from '../src/io/parseHistogram.js';
+import {
+  histogramCountsColumns,
+  parseHistogramText,
+  type HistogramParseOptions,
+} from '../src/io/parseHistogram.js';
 import { parseArrivalsText, type ArrivalsParseOptions } from '../src/io/parseArrivals.js';
 import { parseSpectrumText, type SpectrumParseOptions } from '../src/io/parseSpectrum.js';
 import { splitSourceRef } from '../src/io/sourceRef.js';
@@ -41,6 +45,22 @@ export function readHistogramFile(
     );
   }
   return parseHistogramText(readTextFile(path), { ...opts, column: column ?? opts.column, source: path });
+}
+
+/**
+ * Every decay in a file, one histogram per counts column: for a reference with a column (or a
+ * column option) just that one.
+ */
+export function readAllHistograms(
+  pathOrRef: string,
+  opts: Omit<HistogramParseOptions, 'source'> = {},
+): Histogram[] {
+  const { path, column } = splitRef(pathOrRef);
+  if (column !== undefined || opts.column !== undefined) return [readHistogramFile(pathOrRef, opts)];
+  const text = readTextFile(path);
+  return histogramCountsColumns(text, { ...opts, source: path }).map((c) =>
+    parseHistogramText(text, { ...opts, column: c, source: path }),
+  );
 }
 
 /** Reads a photon arrival list and histograms it. */

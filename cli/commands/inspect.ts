@@ -5,7 +5,7 @@ import { parseTimeUnit } from '../../src/io/columnNames.js';
 import type { Histogram, Spectrum, SpectrumAxis } from '../../src/io/types.js';
 import type { TimeUnit } from '../../shared/units.js';
 import { formatNumber } from '../../src/io/validate.js';
-import { readArrivalsFile, readHistogramFile, readSpectrumFile } from '../readInput.js';
+import { readAllHistograms, readArrivalsFile, readSpectrumFile } from '../readInput.js';
 import { action } from '../run.js';
 
 interface InspectOptions {
@@ -301,7 +301,10 @@ export function register(program: Command): void {
     .option('--axis <axis>', 'spectral axis when the header does not say: nm or cm-1')
     .option('--concentration-m <M>', 'concentration for an absorbance spectrum, mol/L')
     .option('--path-length-cm <cm>', 'path length for an absorbance spectrum, cm')
-    .option('--json', 'print the inspection as JSON on stdout')
+    .option(
+      '--json',
+      'print the inspection as JSON on stdout (an array, one entry per decay, for a file of several decays)',
+    )
     .action(
       action((file: string, opts: InspectOptions) => {
         const binWidthNs = positiveOption(opts.binWidthNs, '--bin-width-ns');
@@ -327,16 +330,18 @@ export function register(program: Command): void {
           text = describeSpectrum(i);
           warnings = i.warnings;
         } else {
-          let h: Histogram;
+          let hs: Histogram[];
           if (opts.arrivals) {
             if (binWidthNs === undefined)
               throw new InputError('--arrivals needs --bin-width-ns to histogram the arrival times');
-            h = readArrivalsFile(file, {
-              binWidthNs,
-              rangeNs: rangeOption(opts.rangeNs),
-              unit: timeUnitOption(opts.arrivalUnit, '--arrival-unit', false) as TimeUnit | undefined,
-              column: opts.column,
-            });
+            hs = [
+              readArrivalsFile(file, {
+                binWidthNs,
+                rangeNs: rangeOption(opts.rangeNs),
+                unit: timeUnitOption(opts.arrivalUnit, '--arrival-unit', false) as TimeUnit | undefined,
+                column: opts.column,
+              }),
+            ];
           } else {
             for (const [flag, v] of [
               ['--arrival-unit', opts.arrivalUnit],
@@ -344,16 +349,19 @@ export function register(program: Command): void {
             ] as const) {
               if (v !== undefined) throw new InputError(`${flag} applies only with --arrivals`);
             }
-            h = readHistogramFile(file, {
+            // A file of several decays is shown decay by decay unless one is chosen.
+            hs = readAllHistograms(file, {
               column: opts.column,
               binWidthNs,
               timeUnit: timeUnitOption(opts.timeUnit, '--time-unit', true),
             });
           }
-          const i = inspectHistogram(h);
-          json = i;
-          text = describeHistogram(i);
-          warnings = i.warnings;
+          const inspections = hs.map(inspectHistogram);
+          json = inspections.length === 1 ? inspections[0] : inspections;
+          text = inspections.map(describeHistogram).join('\n\n');
+          warnings = inspections.flatMap((i) =>
+            inspections.length === 1 ? i.warnings : i.warnings.map((w) => `${i.source}: ${w}`),
+          );
         }
         if (opts.json) {
           process.stdout.write(`${JSON.stringify(json, null, 2)}\n`);

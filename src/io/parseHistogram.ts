@@ -245,6 +245,24 @@ function findTimeColumn(
   );
 }
 
+/**
+ * The counts columns of a histogram table, in file order, without reading the counts: for listing
+ * the decays of a multi-decay file. Throws the same InputErrors as `parseHistogramText` for a file
+ * whose layout cannot be read.
+ */
+export function histogramCountsColumns(
+  text: string,
+  options: Omit<HistogramParseOptions, 'column'>,
+): string[] {
+  const table = readTextTable(text, options.source);
+  const metaBin = findMetadataBinWidth(table.metadata, {
+    source: options.source,
+    lines: table.metadataLines,
+  });
+  const time = findTimeColumn(table, options, metaBin?.ns);
+  return table.columns.filter((_, j) => j !== time?.index);
+}
+
 function chooseCountsColumn(
   table: TextTable,
   column: string | number | undefined,

@@ -5,7 +5,7 @@ import { join } from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
-import { readHistogramFile, readSpectrumFile } from '../../cli/readInput.js';
+import { readAllHistograms, readHistogramFile, readSpectrumFile } from '../../cli/readInput.js';
 import { inspectHistogram } from '../../cli/commands/inspect.js';
 
 const run = promisify(execFile);
@@ -79,10 +79,24 @@ describe('lumirate inspect', () => {
     expect(r.stdout).toMatch(/total 176, peak 90/);
   });
 
-  it('chooses a decay from a multi-decay file by file#column or --column', async () => {
-    const a = JSON.parse((await inspect('multi.csv#A-toluene', '--json')).stdout);
-    expect(a).toMatchObject({ source: 'multi.csv#A-toluene', totalCounts: 18, countsColumn: 'A-toluene' });
-    // The same choice by index, read in-process through the helper every command uses.
+  it('shows every decay of a multi-decay file, or the one chosen by file#column or --column', async () => {
+    const all = JSON.parse((await inspect('multi.csv', '--json')).stdout);
+    expect(all).toHaveLength(2);
+    expect(all[0]).toMatchObject({
+      source: 'multi.csv#A-ethanol',
+      countsColumn: 'A-ethanol',
+      totalCounts: 6,
+    });
+    expect(all[1]).toMatchObject({
+      source: 'multi.csv#A-toluene',
+      countsColumn: 'A-toluene',
+      totalCounts: 18,
+    });
+    // The choice of one decay, read in-process through the helpers every command uses.
+    expect(readHistogramFile(join(dir, 'multi.csv#A-toluene')).source).toBe(
+      `${join(dir, 'multi.csv')}#A-toluene`,
+    );
+    expect(readAllHistograms(`${join(dir, 'multi.csv')}#A-toluene`).map((h) => h.counts[0])).toEqual([5]);
     expect(readHistogramFile(join(dir, 'multi.csv'), { column: 2 }).counts).toEqual(
       Float64Array.from([1, 2, 3]),
     );
