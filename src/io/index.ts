@@ -1,5 +1,10 @@
 /** The importer's public surface: text in, histograms and spectra out. See FORMATS.md for the layouts. */
-export { parseHistogramText, AXIS_TOLERANCE, type HistogramParseOptions } from './parseHistogram.js';
+export {
+  parseHistogramText,
+  histogramCountsColumns,
+  AXIS_TOLERANCE,
+  type HistogramParseOptions,
+} from './parseHistogram.js';
 export { parseArrivalsText, MAX_ARRIVAL_CHANNELS, type ArrivalsParseOptions } from './parseArrivals.js';
 export { parseSpectrumText, type SpectrumParseOptions } from './parseSpectrum.js';
 export { splitSourceRef } from './sourceRef.js';
