@@ -6,6 +6,7 @@ import type { FitResult, SampleResult, SeriesResult } from '../shared/schema.js'
 import { formatNumber, formatValueError } from '../shared/format.js';
 import { el } from './dom.js';
 import { warningsOf } from './table.js';
+import { displayName, splitUnit } from './names.js';
 
 type Row = [label: string, value: string, hint?: string];
 
@@ -217,54 +218,21 @@ export function sourceCard(s: SampleResult): HTMLElement {
   );
 }
 
-/** Unit suffixes of parameter names (house convention: the unit ends the field name). */
-const UNIT_SUFFIXES: [string, string][] = [
-  ['PerMPerS', 'M⁻¹ s⁻¹'],
-  ['PerM', 'M⁻¹'],
-  ['PerS', 's⁻¹'],
-  ['Ns', 'ns'],
-  ['Ev', 'eV'],
-  ['KjPerMol', 'kJ/mol'],
-  ['Nm', 'nm'],
-  ['Cm', 'cm⁻¹'],
-  ['K', 'K'],
-];
-
-function splitUnit(name: string): { base: string; unit: string; suffix: string } {
-  for (const [suffix, unit] of UNIT_SUFFIXES) {
-    if (name.endsWith(suffix) && name.length > suffix.length)
-      return { base: name.slice(0, -suffix.length), unit, suffix };
-  }
-  return { base: name, unit: '', suffix: '' };
-}
-
-/** Usual symbols of the series laws' parameters; other names are shown as they are. */
-const PARAMETER_SYMBOLS: Record<string, string> = {
-  ea: 'Eₐ',
-  k0: 'k₀',
-  ksv: 'K_SV',
-  kq: 'k_q',
-  tau0: 'τ₀',
-  r0: 'R₀',
-  kr: 'k_r',
-  knr: 'k_nr',
-};
-
-/** "eaEv" with "eaErrEv" (or "eaEvErr") → ["ea", "0.250 ± 0.010 eV"]. */
+/** "eaEv" with "eaErrEv" (or "eaEvErr") → ["Eₐ (eV)", "0.250 ± 0.010"]. */
 export function seriesParameterRows(parameters: Record<string, number>): [string, string][] {
   const rows: [string, string][] = [];
-  const used = new Set<string>();
   for (const key of Object.keys(parameters)) {
-    if (used.has(key)) continue;
-    const { base, unit, suffix } = splitUnit(key);
-    if (/Err$/.test(base) || /Err$/.test(key)) continue;
-    const errKey = [`${base}Err${suffix}`, `${key}Err`].find((k) => k in parameters);
-    if (errKey) used.add(errKey);
+    // Per-sample entries are named head_sample ("rNm_dye-3", with its error "rErrNm_dye-3").
+    const cut = key.indexOf('_');
+    const head = cut < 0 ? key : key.slice(0, cut);
+    const tail = cut < 0 ? '' : key.slice(cut);
+    const { base, suffix } = splitUnit(head);
+    if (/Err$/.test(base)) continue;
+    const errKey = [`${base}Err${suffix}${tail}`, `${head}Err${tail}`].find((k) => k in parameters);
     const value = errKey
       ? formatValueError(parameters[key], parameters[errKey])
       : formatNumber(parameters[key]);
-    const symbol = PARAMETER_SYMBOLS[base] ?? base;
-    rows.push([unit ? `${symbol} (${unit})` : symbol, value]);
+    rows.push([cut < 0 ? displayName(key) : `${displayName(head)}, ${key.slice(cut + 1)}`, value]);
   }
   return rows;
 }

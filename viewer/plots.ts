@@ -7,6 +7,7 @@ import type uPlotType from 'uplot';
 import type { FitCurves, SeriesResult } from '../shared/schema.js';
 import { DECIMATE_ABOVE, decimationIndices, pick } from './decimate.js';
 import { STYLE } from './palette.js';
+import { seriesDisplay } from './seriesView.js';
 import { el, download, safeFileName } from './dom.js';
 
 /** uPlot arrives as a global from its own inline script. */
@@ -345,6 +346,17 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
   return handles;
 }
 
+/** Merges two ascending x columns into one, with each y column null where it has no value. */
+function alignColumns(
+  a: { x: number[]; y: number[] },
+  b: { x: number[]; y: number[] },
+): [number[], (number | null)[], (number | null)[]] {
+  const xs = [...new Set([...a.x, ...b.x])].sort((p, q) => p - q);
+  const ya = new Map(a.x.map((x, i) => [x, a.y[i]]));
+  const yb = new Map(b.x.map((x, i) => [x, b.y[i]]));
+  return [xs, xs.map((x) => ya.get(x) ?? null), xs.map((x) => yb.get(x) ?? null)];
+}
+
 /** Points with error bars and the fitted law; clicking a point reports its sample. */
 export function drawSeriesPlot(
   container: HTMLElement,
@@ -352,20 +364,20 @@ export function drawSeriesPlot(
   title: string,
   onPick: (sample: string) => void,
 ): PlotHandle {
-  const pts = series.points.slice().sort((a, b) => a.x - b.x);
-  const x = pts.map((p) => p.x);
-  const y = pts.map((p) => p.y);
-  const fit = pts.map((p) => p.fit);
+  const view = seriesDisplay(series);
+  const pts = view.points;
+  const [x, y, fit] = alignColumns({ x: pts.map((p) => p.x), y: pts.map((p) => p.y) }, view.curve);
   const whiskers = (u: uPlotType) => {
     const ctx = u.ctx;
     ctx.save();
     ctx.strokeStyle = STYLE.seriesPoints.stroke;
     ctx.lineWidth = Math.max(1, devicePixelRatio);
+    const bottom = u.bbox.top + u.bbox.height;
     for (const p of pts) {
-      if (!(p.yErr > 0)) continue;
+      if (!(p.yHigh > p.yLow)) continue;
       const cx = u.valToPos(p.x, 'x', true);
-      const y0 = u.valToPos(p.y - p.yErr, 'y', true);
-      const y1 = u.valToPos(p.y + p.yErr, 'y', true);
+      const y0 = Number.isFinite(p.yLow) ? u.valToPos(p.yLow, 'y', true) : bottom;
+      const y1 = u.valToPos(p.yHigh, 'y', true);
       const cap = 4 * devicePixelRatio;
       ctx.beginPath();
       ctx.moveTo(cx, y0);
@@ -378,6 +390,7 @@ export function drawSeriesPlot(
     }
     ctx.restore();
   };
+  const finiteLows = pts.map((p) => p.yLow).filter((v) => Number.isFinite(v));
   const handle = basePlot(
     title,
     `series-${series.model}`,
@@ -389,19 +402,19 @@ export function drawSeriesPlot(
         y: {
           // Leave room for the error bars.
           range: (_u, min, max) => {
-            const lo = Math.min(min, ...pts.map((p) => p.y - (p.yErr || 0)));
-            const hi = Math.max(max, ...pts.map((p) => p.y + (p.yErr || 0)));
+            const lo = Math.min(min, ...finiteLows);
+            const hi = Math.max(max, ...pts.map((p) => p.yHigh));
             const pad = (hi - lo) * 0.08 || Math.abs(hi) * 0.1 || 1;
             return [lo - pad, hi + pad];
           },
         },
       },
       axes: [
-        { ...valueAxis(series.xName, 40), values: tickLabels },
-        { ...valueAxis(series.yName, 80), values: tickLabels },
+        { ...valueAxis(view.xLabel, 40), values: tickLabels },
+        { ...valueAxis(view.yLabel, 80), values: tickLabels },
       ],
       series: [
-        { label: series.xName },
+        { label: view.xLabel },
         {
           label: 'Measured',
           stroke: STYLE.seriesPoints.stroke,
@@ -409,15 +422,17 @@ export function drawSeriesPlot(
           paths: () => null,
           points: { show: true, size: 8, stroke: STYLE.seriesPoints.stroke, fill: STYLE.seriesPoints.fill },
         },
-        { label: 'Fit', ...STYLE.seriesFit, points: { show: false } },
+        { label: 'Fit', ...STYLE.seriesFit, points: { show: false }, spanGaps: true },
       ],
       hooks: { draw: [whiskers] },
     },
     [x, y, fit] as uPlotType.AlignedData,
   );
+  const sampleAt = new Map(pts.map((p) => [p.x, p.sample]));
   handle.plot.over.addEventListener('click', () => {
     const idx = handle.plot.cursor.idx;
-    if (idx !== null && idx !== undefined && pts[idx]) onPick(pts[idx].sample);
+    const sample = idx !== null && idx !== undefined ? sampleAt.get(x[idx]) : undefined;
+    if (sample !== undefined) onPick(sample);
   });
   return handle;
 }

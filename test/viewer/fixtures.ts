@@ -289,31 +289,40 @@ export function fixtureReport(options: FixtureReportOptions = {}): ReportData {
   }
   const series: SeriesResult[] = [];
   if (options.series ?? true) {
+    // Shaped like the batch's Arrhenius series: x is the temperature column, y is k_nr in s⁻¹ and the
+    // law is k_nr(T) = k₀ + A·exp(−Eₐ/k_B T) (k_B = 8.617333262e-5 eV/K, CODATA 2018).
+    const law = (T: number) => 2e7 + 5e11 * Math.exp(-0.25 / (8.617333262e-5 * T));
     const pts = [278, 288, 298, 308, 318, 328].map((T, i) => {
-      const x = 1 / T;
-      const fit = 21.2 - 0.25 / 8.617333262e-5 / T;
-      const y = fit + (i % 2 ? 0.02 : -0.02);
-      return { sample: `dye-00${i + 1}`, x, y, yErr: 0.03, fit, residual: (y - fit) / 0.03 };
+      const fit = law(T);
+      const y = fit * (i % 2 ? 1.02 : 0.98);
+      return { sample: `dye-00${i + 1}`, x: T, y, yErr: 0.03 * y, fit, residual: (y - fit) / (0.03 * y) };
     });
     series.push({
       schemaVersion: SCHEMA_VERSION,
       model: 'arrhenius',
-      xName: '1/T (K⁻¹)',
-      yName: 'ln(k_nr / s⁻¹)',
-      parameters: { eaEv: 0.25, eaErrEv: 0.01, k0PerS: Math.exp(21.2), k0ErrPerS: Math.exp(21.2) * 0.1 },
+      xName: 'temperature_k',
+      yName: 'knrPerS',
+      parameters: { eaEv: 0.25, eaErrEv: 0.01, k0PerS: 2e7, k0ErrPerS: 0.4e7, aPerS: 5e11, aErrPerS: 1e11 },
       points: pts,
       chi2Reduced: 0.44,
-      dof: 4,
-      notes: ['k_nr = k0 · exp(−Ea / k_B T)'],
+      dof: 3,
+      notes: ['k_nr(T) = k₀ + A·exp(−Eₐ/k_B T)'],
       warnings: [],
     });
     const q = [0, 0.01, 0.02, 0.04, 0.08];
     series.push({
       schemaVersion: SCHEMA_VERSION,
       model: 'stern-volmer',
-      xName: '[Q] (M)',
-      yName: 'τ₀/τ',
-      parameters: { ksvPerM: 12.1, ksvErrPerM: 0.3, kqPerMPerS: 3.0e9, kqErrPerMPerS: 0.1e9 },
+      xName: 'quencher_m',
+      yName: 'tau0OverTau',
+      parameters: {
+        kqPerMPerS: 3.0e9,
+        kqErrPerMPerS: 0.1e9,
+        tau0Ns: 4.03,
+        tau0ErrNs: 0.02,
+        ksvPerM: 12.1,
+        ksvErrPerM: 0.3,
+      },
       points: q.map((c, i) => {
         const fit = 1 + 12.1 * c;
         const y = fit * (1 + (i % 2 ? 0.01 : -0.01));

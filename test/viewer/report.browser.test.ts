@@ -253,3 +253,27 @@ describe('hostile names in the report', () => {
     writeFileSync(join(OUTPUT_DIR, 'hostile-names.txt'), names.join('\n'));
   });
 });
+
+describe('series views', () => {
+  it('draw each series with its points and fitted law, and list the parameters with their errors', async () => {
+    const data = fixtureReport({ samples: 6, channels: 256 });
+    const path = join(OUTPUT_DIR, 'series-report.html');
+    writeReport(data, path);
+    problems.length = 0;
+    await open(path);
+    expect(await page.locator('.lr-series .lr-series-block').count()).toBe(data.series.length);
+    // Points in vermillion, the law as a black dashed line (palette.ts).
+    const points = await pixelsNear('.lr-series canvas', '#D55E00');
+    const law = await pixelsNear('.lr-series canvas', '#000000');
+    for (let k = 0; k < data.series.length; k++) {
+      expect(points[k]).toBeGreaterThan(50);
+      expect(law[k]).toBeGreaterThan(50);
+    }
+    const card = await page.locator('.lr-series-card').first().textContent();
+    // The fixture's Arrhenius parameters: Ea = 0.25 ± 0.01 eV, formatted by the house rule.
+    expect(card).toContain('Eₐ (eV)');
+    expect(card).toContain('0.250 ± 0.010');
+    await page.locator('.lr-series').screenshot({ path: join(OUTPUT_DIR, 'series.png') });
+    expect(problems).toEqual([]);
+  });
+});
