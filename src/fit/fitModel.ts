@@ -405,6 +405,10 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
       : setup.mode === 'measured'
         ? setup.irfFwhmChannels * dt
         : NaN;
+  if (setup.mode === 'measured' && setup.irfFwhmChannels < 2.5)
+    warnings.push(
+      `the IRF spans only ${fmt(setup.irfFwhmChannels)} channels (FWHM): its shape inside a channel has to be assumed, which can shift lifetimes by ~0.1 %; finer channels remove this`,
+    );
   const windowNs = setup.channels * dt;
   components.forEach((c, k) => {
     if (irfFwhmNs > 0 && c.tauNs < irfFwhmNs / 10)
