@@ -148,7 +148,7 @@ export function parseArrivalsText(text: string, options: ArrivalsParseOptions): 
     columns: [...columns],
     timeColumn: columns[index],
     timeUnit: unit,
-    binWidthSource: `given for histogramming (arrival unit ${unit} ${unitHow})`,
+    binWidthSource: `chosen for histogramming; arrival times in ${unit}, ${unitHow}`,
     countsColumn: `${arrivals.length} arrivals in '${columns[index]}'`,
     layout: 'arrivals',
   };
