@@ -1,7 +1,7 @@
 import type { Statistic, IrfMode } from '../../shared/schema.js';
 import { InputError } from '../errors.js';
 import type { Histogram } from '../io/types.js';
-import { prepareIrf, fwhm } from '../model/reconvolve.js';
+import { prepareIrf } from '../model/reconvolve.js';
 import type { FitOptions } from './options.js';
 
 /** Names accepted by `fix` and `bounds`. */
@@ -79,7 +79,8 @@ function risingEdge(y: ArrayLike<number>, peak: number, level: number): number {
  *
  * Default fit range: from the channel where the decay's rising edge first reaches 5 % of its
  * maximum, less 3 IRF widths (at least 10 channels, so the background before the pulse is seen), to
- * the last channel. A tail fit starts at `tailStartNs`, by default 2 IRF widths after the peak.
+ * the last channel. A tail fit starts at `tailStartNs`, by default 2 IRF widths after the peak (the
+ * width estimated from the decay's 10–90 % rise when no IRF was measured).
  */
 export function resolveFitSetup(
   decay: Histogram,
@@ -183,7 +184,7 @@ export function resolveFitSetup(
       if (!Number.isFinite(options.tailStartNs))
         fail(`the tail start ${options.tailStartNs} ns is not a number`, decay);
       tailStart = Math.ceil((options.tailStartNs - decay.timeNs[0]) / dt - 1e-9);
-    } else tailStart = peak + Math.ceil(2 * fwhm(counts, peak, 0));
+    } else tailStart = peak + Math.ceil(2 * irfFwhmChannels);
     tailStart = Math.max(0, Math.min(n - 1, tailStart));
     if (!options.rangeChannels && !options.rangeNs) fitStart = tailStart;
     fitStart = Math.max(fitStart, tailStart);
