@@ -49,9 +49,14 @@ export class Journal {
 
   /** Reads back an appended line's JSON text. */
   read(at: { offset: number; length: number }): string {
+    return this.readBytes(at).toString('utf8');
+  }
+
+  /** Reads back an appended line as UTF-8 bytes, for copying into another file without decoding. */
+  readBytes(at: { offset: number; length: number }): Buffer {
     const buf = Buffer.allocUnsafe(at.length);
     readSync(this.fdForRead(), buf, 0, at.length, at.offset);
-    return buf.toString('utf8');
+    return buf;
   }
 
   private readFd = -1;

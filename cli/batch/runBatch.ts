@@ -251,7 +251,7 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   try {
     const record = (json: string, brief: SampleResult) => {
       const at = journal.append(json);
-      entries.push({ brief, json: () => journal.read(at) });
+      entries.push({ brief, json: () => journal.read(at), bytes: () => journal.readBytes(at) });
       done++;
       if (brief.status === 'failed') failedNow++;
     };

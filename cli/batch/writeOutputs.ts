@@ -19,6 +19,8 @@ export const OUTPUT_FILES = [
 export interface OutputEntry {
   brief: SampleResult;
   json: () => string;
+  /** The same JSON as UTF-8 bytes, when they can be had without encoding (straight from the journal). */
+  bytes?: () => Uint8Array;
 }
 
 /** Removes temporary files left by a killed run (their writer is gone; the real files are intact). */
@@ -61,9 +63,13 @@ export function writeBatchOutputs(
   options.writeReport?.(() => lazySamples(ordered), series);
 }
 
-function* resultsJsonChunks(entries: OutputEntry[]): Generator<string> {
+function* resultsJsonChunks(entries: OutputEntry[]): Generator<string | Uint8Array> {
   yield '[\n';
-  for (let k = 0; k < entries.length; k++) yield (k ? ',\n' : '') + entries[k].json();
+  for (let k = 0; k < entries.length; k++) {
+    if (k) yield ',\n';
+    const e = entries[k];
+    yield e.bytes ? e.bytes() : e.json();
+  }
   yield '\n]\n';
 }
 
