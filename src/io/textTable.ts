@@ -80,6 +80,9 @@ const NUMBER_COMMA = /^[+-]?(?:\d+,?\d*|,\d+)(?:[eE][+-]?\d+)?$/;
 /** A cell that only reads as a number with a decimal comma: digits, one comma, digits. */
 const COMMA_DECIMAL_ONLY = /^[+-]?(?:\d*,\d+|\d+,\d*)(?:[eE][+-]?\d+)?$/;
 
+/** A cell that reads as a number with a decimal point. */
+const POINT_DECIMAL = /^[+-]?(?:\d*\.\d+|\d+\.\d*)(?:[eE][+-]?\d+)?$/;
+
 /** True when the cell reads as a number under the given decimal mark. */
 export function looksNumeric(cell: string, decimalMark: '.' | ','): boolean {
   return (decimalMark === '.' ? NUMBER : NUMBER_COMMA).test(cell.trim());
@@ -133,9 +136,10 @@ function clip(s: string): string {
   return s.length > 40 ? `${s.slice(0, 37)}…` : s;
 }
 
-interface ContentLine {
-  line: number;
-  text: string;
+/** Lines that hold data or the header, as parallel arrays (one object per line costs at 10⁶ lines). */
+interface ContentLines {
+  line: number[];
+  text: string[];
 }
 
 /**
@@ -150,13 +154,14 @@ export function readTextTable(text: string, source: string): TextTable {
   const metadata: Record<string, string> = {};
   const metadataLines: Record<string, number> = {};
   const warnings: string[] = [];
-  const content: ContentLine[] = [];
+  const content: ContentLines = { line: [], text: [] };
   for (let i = 0; i < lines.length; i++) {
     const raw = lines[i];
     // Fast path for the common data line, which starts with a digit, sign or point.
     const c0 = raw.charCodeAt(0);
     if ((c0 >= 48 && c0 <= 57) || c0 === 45 || c0 === 46 || c0 === 43) {
-      content.push({ line: i + 1, text: raw });
+      content.line.push(i + 1);
+      content.text.push(raw);
       continue;
     }
     const trimmed = raw.trim();
@@ -176,25 +181,26 @@ export function readTextTable(text: string, source: string): TextTable {
       }
       continue;
     }
-    content.push({ line: i + 1, text: raw });
+    content.line.push(i + 1);
+    content.text.push(raw);
   }
-  if (content.length === 0) {
+  if (content.text.length === 0) {
     throw new InputError(
       lines.some((l) => l.trim() !== '') ? 'holds only comment lines and no data' : 'is empty',
       { file: source },
     );
   }
 
-  const delimiter = detectDelimiter(content[0].text);
+  const delimiter = detectDelimiter(content.text[0]);
   const split = splitLines(content, delimiter, source);
   // A trailing separator (spreadsheet exports) leaves an empty last field on each line: no column.
   const first =
     split[0].length > 1 && split[0][split[0].length - 1].trim() === '' ? split[0].slice(0, -1) : split[0];
   const firstNumeric = first.every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
   const header = firstNumeric ? null : first.map((c) => c.trim());
-  const headerLine = header ? content[0].line : null;
-  let dataCells = header ? split.slice(1) : split;
-  let dataLines = header ? content.slice(1) : content;
+  const headerLine = header ? content.line[0] : null;
+  const dataCells = header ? split.slice(1) : split;
+  const dataLineOffset = header ? 1 : 0;
   if (dataCells.length === 0) {
     throw new InputError('has a header line but no data rows', {
       file: source,
@@ -206,7 +212,7 @@ export function readTextTable(text: string, source: string): TextTable {
   // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
   // the word before it when that makes the header as wide as the data.
   if (header && delimiter === 'whitespace' && header.length !== dataCells[0].length) {
-    const joined = content[0].text
+    const joined = content.text[0]
       .trim()
       .replace(/\s+(?=[([/])/g, '')
       .replace(/\/\s+/g, '/')
@@ -244,13 +250,11 @@ export function readTextTable(text: string, source: string): TextTable {
     if (cells.length !== width) {
       throw new InputError(
         `has ${cells.length} ${cells.length === 1 ? 'field' : 'fields'} but the ${header ? 'header' : 'first row'} has ${width}; every row needs the same columns`,
-        { file: source, line: dataLines[r].line, column: Math.min(cells.length, width) + 1 },
+        { file: source, line: content.line[r + dataLineOffset], column: Math.min(cells.length, width) + 1 },
       );
     }
-    rows.push({ line: dataLines[r].line, cells });
+    rows.push({ line: content.line[r + dataLineOffset], cells });
   }
-  dataCells = [];
-  dataLines = [];
 
   const decimalMark = detectDecimalMark(rows, delimiter, source);
   return {
@@ -282,17 +286,19 @@ function detectDelimiter(first: string): Delimiter {
 
 const PAPA_DELIMITER: Record<string, string> = { comma: ',', tab: '\t', semicolon: ';' };
 
-function splitLines(content: ContentLine[], delimiter: Delimiter, source: string): string[][] {
-  if (delimiter === 'single column') return content.map((c) => [c.text.trim()]);
-  if (delimiter === 'whitespace') return content.map((c) => c.text.trim().split(/\s+/));
+function splitLines(content: ContentLines, delimiter: Delimiter, source: string): string[][] {
+  if (delimiter === 'single column') return content.text.map((t) => [t.trim()]);
+  if (delimiter === 'whitespace') return content.text.map((t) => t.trim().split(/\s+/));
   const sep = PAPA_DELIMITER[delimiter];
   // Lines without a quote split natively (the bulk of any numeric table, and several times faster);
   // papaparse handles quoted fields. One row per line keeps line numbers exact.
-  return content.map((c) => (c.text.includes('"') ? splitQuoted(c, sep, source) : c.text.split(sep)));
+  return content.text.map((t, i) =>
+    t.includes('"') ? splitQuoted(t, content.line[i], sep, source) : t.split(sep),
+  );
 }
 
-function splitQuoted(c: ContentLine, sep: string, source: string): string[] {
-  const parsed = Papa.parse<string[]>(c.text, {
+function splitQuoted(text: string, line: number, sep: string, source: string): string[] {
+  const parsed = Papa.parse<string[]>(text, {
     delimiter: sep,
     newline: '\n',
     quoteChar: '"',
@@ -303,7 +309,7 @@ function splitQuoted(c: ContentLine, sep: string, source: string): string[] {
   if (parsed.errors.some((e) => e.type === 'Quotes') || parsed.data.length !== 1) {
     throw new InputError('has an unterminated quoted field; quotes must open and close on the same line', {
       file: source,
-      line: c.line,
+      line,
     });
   }
   return parsed.data[0];
@@ -319,10 +325,13 @@ function detectDecimalMark(rows: TableRow[], delimiter: Delimiter, source: strin
   let point: { line: number; column: number; text: string } | null = null;
   for (const row of rows) {
     for (let j = 0; j < row.cells.length; j++) {
-      const t = row.cells[j].trim();
-      if (!comma && COMMA_DECIMAL_ONLY.test(t)) comma = { line: row.line, column: j + 1, text: t };
-      else if (!point && /^[+-]?(?:\d*\.\d+|\d+\.\d*)(?:[eE][+-]?\d+)?$/.test(t))
-        point = { line: row.line, column: j + 1, text: t };
+      const cell = row.cells[j];
+      // Most cells hold neither mark; the cheap test spares them the regular expressions.
+      if (!comma && cell.includes(',') && COMMA_DECIMAL_ONLY.test(cell.trim())) {
+        comma = { line: row.line, column: j + 1, text: cell.trim() };
+      } else if (!point && cell.includes('.') && POINT_DECIMAL.test(cell.trim())) {
+        point = { line: row.line, column: j + 1, text: cell.trim() };
+      }
     }
     if (comma && point) break;
   }
