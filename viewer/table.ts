@@ -33,13 +33,21 @@ function metadataKeys(samples: SampleResult[]): string[] {
   return keys;
 }
 
+const warningCache = new WeakMap<SampleResult, string[]>();
+
+/** Every warning of a sample (its own, the fit's, the rates' and Strickler–Berg's), each once. */
 function warningsOf(s: SampleResult): string[] {
-  return [
-    ...(s.warnings ?? []),
-    ...(s.fit?.warnings ?? []),
-    ...(s.rates?.warnings ?? []),
-    ...(s.sb?.warnings ?? []),
-  ].filter((w, i, all) => all.indexOf(w) === i);
+  let w = warningCache.get(s);
+  if (!w) {
+    w = [
+      ...(s.warnings ?? []),
+      ...(s.fit?.warnings ?? []),
+      ...(s.rates?.warnings ?? []),
+      ...(s.sb?.warnings ?? []),
+    ].filter((x, i, all) => all.indexOf(x) === i);
+    warningCache.set(s, w);
+  }
+  return w;
 }
 export { warningsOf };
 
@@ -309,7 +317,9 @@ export function createSampleTable(samples: SampleResult[], onSelect: (index: num
       th.setAttribute('aria-sort', ci !== sortCol ? 'none' : sortDir === 1 ? 'ascending' : 'descending'),
     );
     clear(tbody);
-    for (const i of order) tbody.appendChild(rows[i]);
+    const batch = document.createDocumentFragment();
+    for (const i of order) batch.appendChild(rows[i]);
+    tbody.appendChild(batch);
     countNote.textContent = `${order.length} of ${samples.length} samples shown`;
   }
 

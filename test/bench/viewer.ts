@@ -5,6 +5,7 @@
  * are drawn (the page's own `__reportReady` mark), plus the time to switch samples. Figures only.
  */
 import { mkdirSync, statSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { writeReport } from '../../cli/report.js';
@@ -91,3 +92,9 @@ console.log(
 );
 console.log(`switch to the next sample (arrow key, parse + draw): ${fmt(switchMs)}`);
 console.log(`goal: under 2000 ms to open`);
+// Timings on a shared machine mean little without its load.
+console.log(
+  `machine: ${availableParallelism()} cores, load average ${loadavg()
+    .map((x) => x.toFixed(1))
+    .join(' / ')} (1 / 5 / 15 min)`,
+);

@@ -23,7 +23,7 @@ describe('seriesDisplay', () => {
 
   it('draws the law k₀ + A·exp(−Eₐ/k_B T) from the fitted parameters', () => {
     const v = seriesDisplay(arrhenius);
-    // k_B = 8.617333262e-5 eV/K (CODATA 2018, exact from the 2019 SI definitions of k and e).
+    // k_B/e = 8.617333262e-5 eV/K: REFERENCE-VALUES §3 (k_B and e exact in the 2019 SI), VERIFIED there.
     const kB = 8.617333262e-5;
     const { eaEv, k0PerS, aPerS } = arrhenius.parameters;
     v.curve.x.forEach((invT, i) => {
