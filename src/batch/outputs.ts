@@ -45,6 +45,7 @@ export function formatResultsCsv(samples: SampleResult[]): string {
     'knr_err_per_s',
     'kr_sb_per_s',
     'kr_ratio',
+    'kr_ratio_err',
     ...meta,
     'warnings',
     'error',
@@ -82,6 +83,7 @@ export function formatResultsCsv(samples: SampleResult[]): string {
       num(s.rates?.knrErrPerS),
       num(s.sb?.krSbPerS),
       num(s.sb?.krRatio),
+      num(s.sb?.krRatioErr),
       ...meta.map((k) => s.metadata[k] ?? ''),
       allWarnings(s).join('; '),
       s.error ?? '',
@@ -162,7 +164,11 @@ export function formatSummaryMarkdown(
     if (hasSb)
       row.push(
         cell(s.sb?.krSbPerS, undefined),
-        s.sb?.krRatio !== undefined ? formatNumber(s.sb.krRatio, { digits: 3 }) : '–',
+        s.sb?.krRatio === undefined
+          ? '–'
+          : s.sb.krRatioErr
+            ? cell(s.sb.krRatio, s.sb.krRatioErr)
+            : formatNumber(s.sb.krRatio, { digits: 3 }),
       );
     out.push(`| ${row.join(' | ')} |`);
   }
