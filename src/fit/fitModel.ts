@@ -159,7 +159,7 @@ function runFit(setup: FitSetup): FitRun {
     fixedBackground: fix.background ?? null,
     fixedScatter: L.scatter >= 0 ? (fix.scatter ?? null) : null,
     allowNegative: setup.allowNegativeAmplitudes,
-    keep: nc === 1 ? 1 : 3,
+    keep: 3,
   });
   if (starts.length === 0) throw new ComputationError('no starting values could be found for this decay');
 

@@ -3,10 +3,11 @@ import { choleskySolve, weightedGram } from './lm.js';
 
 /**
  * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest
- * lifetime's scale; a coarse geometric grid of lifetimes below and around it (τ_tail·2^k, k = −6, −4.5, −3, −1.5, 0, 1) is tried
- * in every combination, each with its amplitudes, background and scatter solved by weighted linear
- * least squares (weights 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best
- * few combinations start the full fit.
+ * lifetime's scale; a coarse geometric grid of lifetimes around it (one component: τ_tail·2^k,
+ * k = −4 … 4; more components: k = −6, −4.5, −3, −1.5, 0, 1, 2.5) is tried in every combination, each
+ * with its amplitudes, background and scatter solved by weighted linear least squares (weights
+ * 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best few combinations
+ * start the full fit.
  */
 
 /**
@@ -93,8 +94,10 @@ export function gridStarts(
   const lo = Math.min(...opts.tauMinNs);
   const hi = Math.max(...opts.tauMaxNs);
   let grid: number[];
-  if (nc === 1) grid = [opts.tauTailNs / 2, opts.tauTailNs, opts.tauTailNs * 2];
-  else grid = [-6, -4.5, -3, -1.5, 0, 1].map((k) => opts.tauTailNs * 2 ** k);
+  // The log-slope can mislead both ways (a Gaussian IRF's own tail looks like a very short lifetime,
+  // a background slope like a long one), so the grid reaches well beyond it on both sides.
+  if (nc === 1) grid = [-4, -3, -2, -1, 0, 1, 2, 3, 4].map((k) => opts.tauTailNs * 2 ** k);
+  else grid = [-6, -4.5, -3, -1.5, 0, 1, 2.5].map((k) => opts.tauTailNs * 2 ** k);
   grid = grid.map((t) => Math.min(hi, Math.max(lo, t)));
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
