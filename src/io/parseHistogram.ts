@@ -269,6 +269,8 @@ function chooseCountsColumn(
   timeIndex: number,
 ): number {
   const { source, columns } = table;
+  // Choice errors point at the header, where the names are.
+  const at = { file: source, line: table.headerLine ?? undefined };
   const choices = columns
     .map((name, j) => ({ name, j }))
     .filter(({ j }) => j !== timeIndex)
@@ -278,17 +280,15 @@ function chooseCountsColumn(
     throw new InputError('has no counts column', { file: source, line: table.headerLine ?? undefined });
   if (column === undefined) {
     if (columns.length - (timeIndex >= 0 ? 1 : 0) === 1) return timeIndex === 0 ? 1 : 0;
-    throw new InputError(`has several counts columns; choose one of ${choices}`, { file: source });
+    throw new InputError(`has several counts columns; choose one of ${choices}`, at);
   }
   const index = findColumn(columns, column);
   if (index < 0) {
     const what = typeof column === 'number' ? `${column} (it has ${columns.length})` : `'${column}'`;
-    throw new InputError(`has no column ${what}; choose one of ${choices}`, { file: source });
+    throw new InputError(`has no column ${what}; choose one of ${choices}`, at);
   }
   if (index === timeIndex) {
-    throw new InputError(`column ${column} is the time axis, not counts; choose one of ${choices}`, {
-      file: source,
-    });
+    throw new InputError(`column ${column} is the time axis, not counts; choose one of ${choices}`, at);
   }
   return index;
 }

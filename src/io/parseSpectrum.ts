@@ -168,13 +168,17 @@ export function parseSpectrumText(text: string, options: SpectrumParseOptions): 
     if (!others.includes(yIndex))
       throw new InputError(`has no ordinate column '${options.column}'; choose one of ${list}`, {
         file: source,
+        line: table.headerLine ?? undefined,
       });
   } else if (others.length === 1) {
     yIndex = others[0];
   } else {
     const known = table.header ? others.filter((j) => classifyOrdinate(columns[j], kind) !== null) : [];
     if (known.length !== 1)
-      throw new InputError(`has several ordinate columns; choose one of ${list}`, { file: source });
+      throw new InputError(`has several ordinate columns; choose one of ${list}`, {
+        file: source,
+        line: table.headerLine ?? undefined,
+      });
     yIndex = known[0];
   }
 

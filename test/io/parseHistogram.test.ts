@@ -368,11 +368,12 @@ describe('bad input', () => {
     const text = 'time_ns,A,B\n0,1,2\n1,3,4\n';
     expectInputError(() => read(text), {
       file: F,
+      line: 1,
       match: /several counts columns; choose one of 'A' \(2\), 'B' \(3\)/,
     });
-    expectInputError(() => read(text, { column: 'C' }), { file: F, match: /no column 'C'/ });
-    expectInputError(() => read(text, { column: 9 }), { file: F, match: /no column 9/ });
-    expectInputError(() => read(text, { column: 1 }), { file: F, match: /is the time axis/ });
+    expectInputError(() => read(text, { column: 'C' }), { file: F, line: 1, match: /no column 'C'/ });
+    expectInputError(() => read(text, { column: 9 }), { file: F, line: 1, match: /no column 9/ });
+    expectInputError(() => read(text, { column: 1 }), { file: F, line: 1, match: /is the time axis/ });
   });
 
   it('refuses a file with a single data row, two time columns, a repeated header name, or a bad bin-width option', () => {
