@@ -7,7 +7,7 @@
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
-import type { ReportData, SampleResult } from '../../shared/schema.js';
+import type { ReportData, SampleResult, SeriesResult } from '../../shared/schema.js';
 import { writeReport } from '../../cli/report.js';
 import { fixtureReport } from './fixtures.js';
 
@@ -18,6 +18,8 @@ export interface OpenedReport {
   path: string;
   samples: SampleResult[];
   source: 'demo' | 'fixture';
+  /** The batch's results.json, for the demo. */
+  results?: string;
 }
 
 function runCli(args: string[]): { status: number | null; stderr: string; stdout: string } {
@@ -50,10 +52,35 @@ export function demoReport(): OpenedReport {
       path: report,
       samples: JSON.parse(readFileSync(results, 'utf8')) as SampleResult[],
       source: 'demo',
+      results,
     };
   }
   const data: ReportData = fixtureReport({ samples: 12, channels: 4096 });
   const path = join(OUTPUT_DIR, 'fixture-report.html');
   writeReport(data, path);
   return { path, samples: data.samples, source: 'fixture' };
+}
+
+/**
+ * The demo's temperature and quencher series, fitted by `lumirate series` on the batch's results and
+ * shown with `lumirate view --series`. Null before the demo exists.
+ */
+export function demoSeriesReport(opened: OpenedReport): { path: string; series: SeriesResult[] } | null {
+  if (opened.source !== 'demo' || !opened.results) return null;
+  const files: string[] = [];
+  for (const [model, x] of [
+    ['arrhenius', 'temperature_k'],
+    ['stern-volmer', 'quencher_m'],
+  ]) {
+    const file = join(OUTPUT_DIR, `demo-series-${model}.json`);
+    const r = runCli(['series', opened.results, '--model', model, '--x', x, '--out', file]);
+    if (r.status !== 0)
+      throw new Error(`lumirate series --model ${model} failed (exit ${r.status}): ${r.stderr}`);
+    files.push(file);
+  }
+  const path = join(OUTPUT_DIR, 'demo-series-report.html');
+  const view = runCli(['view', opened.results, '--series', ...files, '--out', path, '--quiet']);
+  if (view.status !== 0)
+    throw new Error(`lumirate view --series failed (exit ${view.status}): ${view.stderr}`);
+  return { path, series: files.map((f) => JSON.parse(readFileSync(f, 'utf8')) as SeriesResult) };
 }

@@ -12,7 +12,7 @@ import type { SampleResult } from '../../shared/schema.js';
 import { writeReport } from '../../cli/report.js';
 import { warningsOf } from '../../viewer/table.js';
 import { launchHeadless, type Headless } from './browser.js';
-import { demoReport, OUTPUT_DIR, type OpenedReport } from './demoReport.js';
+import { demoReport, demoSeriesReport, OUTPUT_DIR, type OpenedReport } from './demoReport.js';
 import { fixtureReport } from './fixtures.js';
 
 let chrome: Headless;
@@ -274,6 +274,29 @@ describe('series views', () => {
     expect(card).toContain('Eₐ (eV)');
     expect(card).toContain('0.250 ± 0.010');
     await page.locator('.lr-series').screenshot({ path: join(OUTPUT_DIR, 'series.png') });
+    expect(problems).toEqual([]);
+  });
+});
+
+describe('the demo series', () => {
+  it('appear as series views with their points, law and parameters', async () => {
+    const made = demoSeriesReport(report);
+    if (!made) {
+      // Before the demo exists there is nothing to fit; the fixture series test above covers drawing.
+      expect(report.source).toBe('fixture');
+      return;
+    }
+    problems.length = 0;
+    await open(made.path);
+    expect(await page.locator('.lr-series .lr-series-block').count()).toBe(made.series.length);
+    const points = await pixelsNear('.lr-series canvas', '#D55E00');
+    points.forEach((n) => expect(n).toBeGreaterThan(50));
+    const arrhenius = made.series.find((x) => x.model === 'arrhenius')!;
+    const card = await page.locator('.lr-series-card').first().textContent();
+    const p = arrhenius.parameters;
+    expect(card).toContain(`Eₐ (eV)${formatValueError(p.eaEv, p.eaErrEv)}`);
+    expect(card).toContain(`Points${arrhenius.points.length}`);
+    await page.locator('.lr-series').screenshot({ path: join(OUTPUT_DIR, 'demo-series.png') });
     expect(problems).toEqual([]);
   });
 });
