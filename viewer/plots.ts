@@ -87,6 +87,7 @@ function savePng(u: uPlotType, title: string, fileName: string): void {
 
 function frame(
   title: string,
+  pngTitle: string,
   fileName: string,
   body: HTMLElement,
   plotRef: () => uPlotType | null,
@@ -98,7 +99,7 @@ function frame(
   );
   button.addEventListener('click', () => {
     const u = plotRef();
-    if (u) savePng(u, title, fileName);
+    if (u) savePng(u, pngTitle, fileName);
   });
   return el(
     'figure',
@@ -115,11 +116,13 @@ function basePlot(
   height: number,
   opts: Omit<uPlotType.Options, 'width' | 'height' | 'title'>,
   data: uPlotType.AlignedData,
+  /** Title written into the exported image; the image leaves the page, so it names the sample. */
+  pngTitle = title,
 ): PlotHandle {
   const UPlot = uPlotCtor();
   const body = el('div', { className: 'lr-plot-body' });
   let plot: uPlotType | null = null;
-  const figure = frame(title, fileName, body, () => plot);
+  const figure = frame(title, pngTitle, fileName, body, () => plot);
   container.appendChild(figure);
   plot = new UPlot({ ...opts, width: widthOf(body), height } as uPlotType.Options, data, body);
   const u = plot;
@@ -272,6 +275,7 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
       cursor,
     },
     decayWindow(0, last),
+    `${sampleName}: decay, IRF and model`,
   );
   handles.push(decay);
 
@@ -299,6 +303,7 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
       hooks: { draw: [zeroLine] },
     },
     residualWindow(0, last),
+    `${sampleName}: weighted residuals`,
   );
   handles.push(residuals);
   refineOnZoom(decay.plot, curves.timeNs, decayWindow);
@@ -341,6 +346,7 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
         hooks: { draw: [zeroLine] },
       },
       [lag, ac] as uPlotType.AlignedData,
+      `${sampleName}: residual autocorrelation`,
     ),
   );
   return handles;
