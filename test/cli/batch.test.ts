@@ -2,7 +2,7 @@
  * `lumirate batch`, `series` and `merge` end to end, on simulated decays whose truth the test sets:
  * a temperature series (Arrhenius k_nr) and a quencher titration (Stern–Volmer), plus three bad rows.
  */
-import { spawn, spawnSync } from 'node:child_process';
+import { spawn } from 'node:child_process';
 import {
   existsSync,
   mkdirSync,
@@ -19,19 +19,14 @@ import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { runSeries } from '../../src/batch/series.js';
 import { formatHistogramTable } from '../../src/io/writeTable.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+import { runCliSync } from './runCli.js';
 
 const root = join(import.meta.dirname, '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'lumirate-batch-'));
 afterAll(() => (process.env.KEEP_BATCH_TEST ? undefined : rmSync(dir, { recursive: true, force: true })));
 const at = (...p: string[]) => join(dir, ...p);
 
-function lumirate(...args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'cli', 'main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const lumirate = (...args: string[]) => runCliSync(args);
 
 // Truths set by this test (the law and its worked values: REFERENCE-VALUES §12).
 const R = 8.31446261815; // J mol⁻¹ K⁻¹, CODATA 2018 (REFERENCE-VALUES §3)

@@ -1,26 +1,13 @@
-import { execFile } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { isFitResult, type FitResult } from '../../shared/schema.js';
 import { parseRange } from '../../cli/commands/fit.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+import { runCli } from './runCli.js';
 
-const run = promisify(execFile);
-const root = join(import.meta.dirname, '..', '..');
-const tsx = join(root, 'node_modules', '.bin', 'tsx');
-
-async function lumirate(...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  try {
-    const { stdout, stderr } = await run(tsx, [join(root, 'cli', 'main.ts'), ...args], { cwd: dir });
-    return { code: 0, stdout, stderr };
-  } catch (err) {
-    const e = err as { code: number; stdout: string; stderr: string };
-    return { code: e.code, stdout: e.stdout, stderr: e.stderr };
-  }
-}
+const lumirate = (...args: string[]) => runCli(args, { cwd: dir });
 
 let dir = '';
 beforeAll(() => {

@@ -1,29 +1,14 @@
-import { execFile } from 'node:child_process';
 import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors.js';
 import { readAllHistograms, readHistogramFile, readSpectrumFile } from '../../cli/readInput.js';
 import { inspectHistogram } from '../../cli/commands/inspect.js';
-
-const run = promisify(execFile);
-const root = join(import.meta.dirname, '..', '..');
-const tsx = join(root, 'node_modules', '.bin', 'tsx');
+import { runCli } from './runCli.js';
 
 /** Runs `lumirate inspect …` as a user would, returning exit code, stdout and stderr. */
-async function inspect(...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  try {
-    const { stdout, stderr } = await run(tsx, [join(root, 'cli', 'main.ts'), 'inspect', ...args], {
-      cwd: dir,
-    });
-    return { code: 0, stdout, stderr };
-  } catch (err) {
-    const e = err as { code: number; stdout: string; stderr: string };
-    return { code: e.code, stdout: e.stdout, stderr: e.stderr };
-  }
-}
+const inspect = (...args: string[]) => runCli(['inspect', ...args], { cwd: dir });
 
 let dir = '';
 beforeAll(() => {

@@ -1,4 +1,3 @@
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -6,20 +5,14 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { SCHEMA_VERSION } from '../../shared/schema.js';
 import { jsonErrorOffset } from '../../cli/commands/rates.js';
 import { fitResultWith } from '../physics/fitFixture.js';
+import { runCliSync } from './runCli.js';
 
-const root = join(import.meta.dirname, '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'lumirate-physics-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 const at = (name: string) => join(dir, name);
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
-function lumirate(...args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'cli', 'main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const lumirate = (...args: string[]) => runCliSync(args);
 
 /** A fit result file with two components a = (0.5, 0.5), τ = (1, 4) ns: ⟨τ⟩_a = 2.5 ns (REFERENCE-VALUES §7). */
 function fitJson() {

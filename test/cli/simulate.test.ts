@@ -1,21 +1,14 @@
-import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseHistogramText } from '../../src/io/parseHistogram.js';
+import { runCliSync } from './runCli.js';
 
-const root = join(import.meta.dirname, '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'lumirate-simulate-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function lumirate(...args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'cli', 'main.ts'), ...args], {
-    cwd: root, // where tsx resolves; every file below is given by its absolute path
-    encoding: 'utf8',
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const lumirate = (...args: string[]) => runCliSync(args);
 
 const at = (name: string) => join(dir, name);
 
