@@ -80,6 +80,43 @@ function componentTable(fit: FitResult): HTMLElement {
   return el('table', { className: 'lr-components' }, el('thead', null, head), body);
 }
 
+/**
+ * Correlation coefficients of the free parameters, from the covariance the fit stored. Strong
+ * correlations (|r| ≥ 0.9, a common rule of thumb) are marked with a sign as well as shading.
+ */
+function correlationTable(cov: NonNullable<FitResult['covariance']>): HTMLElement | null {
+  const { names, matrix } = cov;
+  if (names.length < 2 || matrix.length !== names.length) return null;
+  const sd = names.map((_, i) => Math.sqrt(matrix[i][i]));
+  const head = el('tr', null, el('th'), ...names.map((nm) => el('th', { attrs: { scope: 'col' } }, nm)));
+  const body = el('tbody');
+  names.forEach((rowName, i) => {
+    const tr = el('tr', null, el('th', { attrs: { scope: 'row' } }, rowName));
+    names.forEach((_, j) => {
+      if (j > i) {
+        tr.appendChild(el('td'));
+        return;
+      }
+      const r = matrix[i][j] / (sd[i] * sd[j]);
+      const strong = i !== j && Math.abs(r) >= 0.9;
+      tr.appendChild(
+        el(
+          'td',
+          strong ? { className: 'lr-strong', title: 'strongly correlated' } : null,
+          Number.isFinite(r) ? `${r.toFixed(2)}${strong ? ' !' : ''}` : '–',
+        ),
+      );
+    });
+    body.appendChild(tr);
+  });
+  return el(
+    'details',
+    { className: 'lr-correlation' },
+    el('summary', null, 'Parameter correlations'),
+    el('table', null, el('thead', null, head), body),
+  );
+}
+
 /** The fit card: lifetimes, averages, nuisance parameters, goodness of fit and warnings. */
 export function fitCard(s: SampleResult): HTMLElement {
   if (s.status === 'failed' || !s.fit) {
@@ -149,6 +186,7 @@ export function fitCard(s: SampleResult): HTMLElement {
     definitionList(rows),
     selection,
     global,
+    f.covariance ? correlationTable(f.covariance) : null,
     list('lr-warnings', warningsOf(s)),
   );
 }

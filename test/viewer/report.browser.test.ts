@@ -112,6 +112,15 @@ describe(`the report in headless Chromium`, () => {
     expect((await pixelsNear('.lr-plots canvas', '#000000'))[0]).toBeGreaterThan(200);
     const tauCells = await page.locator('.lr-cards .lr-tau').allTextContents();
     expect(tauCells[0]).toContain(lifetimeText(s));
+    if (s.fit!.covariance) {
+      // Correlations from the stored covariance: one row per free parameter, 1.00 on the diagonal.
+      const names = s.fit!.covariance.names;
+      expect(await page.locator('.lr-correlation tbody tr').count()).toBe(names.length);
+      const diagonal = await page.$$eval('.lr-correlation tbody tr', (rows) =>
+        rows.map((r, i) => (r as HTMLTableRowElement).cells[i + 1].textContent),
+      );
+      expect(diagonal).toEqual(names.map(() => '1.00'));
+    }
     await page.screenshot({ path: join(OUTPUT_DIR, 'report.png'), fullPage: true });
   });
 
