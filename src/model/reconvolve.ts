@@ -104,7 +104,7 @@ function dPsi(h: number): number {
 }
 
 export interface PreparedIrf {
-  /** IRF fractions per channel (baseline removed, clipped at 0, unit sum). */
+  /** IRF fractions per channel (baseline removed inside the support, 0 outside it, unit sum). */
   fractions: Float64Array;
   /** Baseline subtracted, counts per channel. */
   baseline: number;
@@ -112,12 +112,32 @@ export interface PreparedIrf {
   peakIndex: number;
   /** Full width at half maximum, channels (linear interpolation on both flanks). */
   fwhmChannels: number;
+  /** Channels kept as the IRF's support, [first, end); the whole axis when no baseline was measured. */
+  support: [number, number];
 }
 
+/** Detection level of the support search, in standard errors of a smoothed baseline channel. */
+const SUPPORT_SIGMAS = 3;
+/** A separate region (a reflection, an afterpulse) is kept only when it stands this far above the noise. */
+const SEPARATE_REGION_SIGMAS = 6;
+
 /**
- * Removes the IRF's own background and normalises it to unit sum. The baseline is the mean of the
- * channels well before the rising edge (before peak − 4 FWHM), when there are at least 8 of them;
- * otherwise none is subtracted. Returns null when nothing is left (an empty or flat IRF).
+ * Removes the IRF's own background and normalises it to unit sum.
+ *
+ * The baseline is the mean of the channels well before the rising edge (before peak − 4 FWHM), when
+ * there are at least 8 of them; otherwise none is subtracted. The mean of Poisson counts is an unbiased
+ * estimate of their level; what must not follow is clipping every channel at 0: on noise-only
+ * channels E[max(n − b, 0)] > 0 (≈ 0.37 counts for b = 1), a positive floor under the whole axis that
+ * widens the IRF's apparent tail and shortens fitted lifetimes. So the IRF is kept only on its
+ * support — the channels where a moving mean over w = max(4, ⌈FWHM⌉) channels stands more than
+ * 3 standard errors above the baseline, widened by w on each side — and set to 0 elsewhere
+ * (its expected value there after subtraction). The region around the peak is always kept; other
+ * regions only when they stand 6 standard errors above the baseline (a reflection, not a fluctuation).
+ * Inside the support negative values are clipped at 0, which biases only the few edge channels.
+ * The noise of the baseline is measured (sample variance of the pre-edge channels), not assumed
+ * Poisson, so IRFs that arrive already background-corrected are handled too.
+ *
+ * Returns null when nothing is left (an empty or flat IRF).
  */
 export function prepareIrf(counts: ArrayLike<number>): PreparedIrf | null {
   const n = counts.length;
@@ -126,21 +146,83 @@ export function prepareIrf(counts: ArrayLike<number>): PreparedIrf | null {
   const rawWidth = fwhm(counts, peakIndex, 0);
   const preEnd = Math.floor(peakIndex - 4 * Math.max(rawWidth, 1));
   let baseline = 0;
+  let noise = 0;
   if (preEnd >= 8) {
     let s = 0;
     for (let i = 0; i < preEnd; i++) s += counts[i];
     baseline = s / preEnd;
+    let ss = 0;
+    for (let i = 0; i < preEnd; i++) ss += (counts[i] - baseline) ** 2;
+    noise = Math.sqrt(ss / (preEnd - 1));
   }
+  if (counts[peakIndex] - baseline <= 0) return null;
+  let first = 0;
+  let end = n;
+  const keep = noise > 0 ? supportMask(counts, baseline, noise, peakIndex, rawWidth) : null;
   const fractions = new Float64Array(n);
   let sum = 0;
   for (let i = 0; i < n; i++) {
+    if (keep && !keep[i]) continue;
     const v = counts[i] - baseline;
     fractions[i] = v > 0 ? v : 0;
     sum += fractions[i];
   }
-  if (!(sum > 0) || counts[peakIndex] - baseline <= 0) return null;
+  if (!(sum > 0)) return null;
+  if (keep) {
+    while (!keep[first]) first++;
+    while (!keep[end - 1]) end--;
+  }
   for (let i = 0; i < n; i++) fractions[i] /= sum;
-  return { fractions, baseline, peakIndex, fwhmChannels: fwhm(fractions, peakIndex, 0) };
+  return {
+    fractions,
+    baseline,
+    peakIndex,
+    fwhmChannels: fwhm(fractions, peakIndex, 0),
+    support: [first, end],
+  };
+}
+
+/** Channels that belong to the IRF's support (see `prepareIrf`), 1 = keep. */
+function supportMask(
+  counts: ArrayLike<number>,
+  baseline: number,
+  noise: number,
+  peakIndex: number,
+  widthChannels: number,
+): Uint8Array {
+  const n = counts.length;
+  const w = Math.max(4, Math.ceil(widthChannels));
+  const half = w >> 1;
+  // Moving mean over [i − half, i − half + w), clamped to the axis; prefix sums keep it O(N).
+  const prefix = new Float64Array(n + 1);
+  for (let i = 0; i < n; i++) prefix[i + 1] = prefix[i] + counts[i];
+  const above = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const a = Math.max(0, i - half);
+    const b = Math.min(n, a + w);
+    const len = b - a;
+    // Excess of the window mean over the baseline, in standard errors of that mean.
+    above[i] = ((prefix[b] - prefix[a]) / len - baseline) / (noise / Math.sqrt(len));
+  }
+  const keep = new Uint8Array(n);
+  let i = 0;
+  while (i < n) {
+    if (!(above[i] > SUPPORT_SIGMAS)) {
+      i++;
+      continue;
+    }
+    let j = i;
+    let top = 0;
+    while (j < n && above[j] > SUPPORT_SIGMAS) top = Math.max(top, above[j++]);
+    // Region [i, j) of window starts; the windows reach half channels back and w − half forward.
+    const lo = Math.max(0, i - half - w);
+    const hi = Math.min(n, j - half + 2 * w);
+    const holdsPeak = peakIndex >= lo && peakIndex < hi;
+    if (holdsPeak || top > SEPARATE_REGION_SIGMAS) keep.fill(1, lo, hi);
+    i = j;
+  }
+  keep[peakIndex] = 1;
+  return keep;
 }
 
 /** Full width at half maximum (channels) of a peak at `peak`, above `base`, by linear interpolation. */
