@@ -5,6 +5,7 @@ import {
   type SeriesResult,
 } from '../../shared/schema.js';
 import { InputError } from '../errors.js';
+import { invertSymmetric, levenbergMarquardt, type LmProblem } from '../fit/lm.js';
 import { efficiencyFromTemperatureSeries } from '../physics/efficiency.js';
 import { AVOGADRO_PER_MOL, ELEMENTARY_CHARGE_C, GAS_CONSTANT_J_PER_MOL_K } from '../physics/constants.js';
 
@@ -18,26 +19,6 @@ export interface XY {
 
 /** J/mol per eV per particle: the Faraday constant N_A·e. */
 const J_PER_MOL_PER_EV = AVOGADRO_PER_MOL * ELEMENTARY_CHARGE_C;
-
-/** Inverse of a small symmetric positive-definite matrix by Gauss–Jordan; null when singular. */
-export function invertSymmetric(m: number[][]): number[][] | null {
-  const n = m.length;
-  const a = m.map((row, i) => [...row, ...Array.from({ length: n }, (_, j) => (i === j ? 1 : 0))]);
-  for (let c = 0; c < n; c++) {
-    let p = c;
-    for (let r = c + 1; r < n; r++) if (Math.abs(a[r][c]) > Math.abs(a[p][c])) p = r;
-    if (!(Math.abs(a[p][c]) > 1e-300)) return null;
-    [a[c], a[p]] = [a[p], a[c]];
-    const piv = a[c][c];
-    for (let j = 0; j < 2 * n; j++) a[c][j] /= piv;
-    for (let r = 0; r < n; r++) {
-      if (r === c) continue;
-      const f = a[r][c];
-      if (f !== 0) for (let j = 0; j < 2 * n; j++) a[r][j] -= f * a[c][j];
-    }
-  }
-  return a.map((row) => row.slice(n));
-}
 
 function checkPoints(points: XY[], what: string, minimum: number): void {
   if (points.length < minimum) {
@@ -118,11 +99,6 @@ export function fitArrhenius(points: XY[]): ArrheniusFit {
   for (const p of points)
     if (!(p.x > 0)) throw new InputError(`sample '${p.sample}': temperature ${p.x} K must be positive`);
   const R = GAS_CONSTANT_J_PER_MOL_K;
-  const chi2At = (k0: number, lnA: number, ea: number): number => {
-    let s = 0;
-    for (const p of points) s += ((p.y - k0 - Math.exp(lnA - ea / (R * p.x))) / p.yErr) ** 2;
-    return s;
-  };
   // Profile over E_a: for each trial, the weighted linear fit of y on exp(−E_a/RT) gives k₀ and A.
   let best = { chi2: Infinity, k0: 0, lnA: 0, ea: 0 };
   for (let eaKj = 0.5; eaKj <= 200; eaKj *= 1.05) {
@@ -134,59 +110,38 @@ export function fitArrhenius(points: XY[]): ArrheniusFit {
   if (!Number.isFinite(best.chi2)) {
     throw new InputError('no Arrhenius term fits: the rate does not rise with temperature in these samples');
   }
-  let p = [best.k0, best.lnA, best.ea];
-  let chi2 = best.chi2;
-  let lambda = 1e-3;
-  let converged = false;
-  let normal: number[][] = [];
-  const buildNormal = (q: number[]): { jtj: number[][]; jtr: number[] } => {
-    const jtj = [
-      [0, 0, 0],
-      [0, 0, 0],
-      [0, 0, 0],
-    ];
-    const jtr = [0, 0, 0];
-    for (const pt of points) {
-      const e = Math.exp(q[1] - q[2] / (R * pt.x));
-      const w = 1 / (pt.yErr * pt.yErr);
-      const J = [1, e, -e / (R * pt.x)];
-      const r = pt.y - q[0] - e;
-      for (let i = 0; i < 3; i++) {
-        jtr[i] += w * J[i] * r;
-        for (let j = 0; j < 3; j++) jtj[i][j] += w * J[i] * J[j];
+  // Refine (k₀, ln A, E_a) together with the fitter's own Levenberg–Marquardt (analytic Jacobian).
+  const n = points.length;
+  const invRT = Float64Array.from(points, (pt) => 1 / (R * pt.x));
+  const problem: LmProblem = {
+    nParams: 3,
+    nPoints: n,
+    data: Float64Array.from(points, (pt) => pt.y),
+    weights: Float64Array.from(points, (pt) => 1 / (pt.yErr * pt.yErr)),
+    loss: 'leastSquares',
+    evaluate(q, model, jac) {
+      for (let i = 0; i < n; i++) {
+        const e = Math.exp(q[1] - q[2] * invRT[i]);
+        model[i] = q[0] + e;
+        if (jac) {
+          jac[i] = 1;
+          jac[n + i] = e;
+          jac[2 * n + i] = -e * invRT[i];
+        }
+        if (!Number.isFinite(model[i])) return false;
       }
-    }
-    return { jtj, jtr };
+      return true;
+    },
   };
-  for (let iter = 0; iter < 200; iter++) {
-    const { jtj, jtr } = buildNormal(p);
-    const damped = jtj.map((row, i) => row.map((v, j) => (i === j ? v * (1 + lambda) : v)));
-    const inv = invertSymmetric(damped);
-    if (!inv) break;
-    const step = inv.map((row) => row.reduce((s, v, j) => s + v * jtr[j], 0));
-    const trial = p.map((v, i) => v + step[i]);
-    const trialChi2 = chi2At(trial[0], trial[1], trial[2]);
-    if (Number.isFinite(trialChi2) && trialChi2 <= chi2) {
-      const drop = chi2 - trialChi2;
-      p = trial;
-      chi2 = trialChi2;
-      lambda = Math.max(lambda / 10, 1e-12);
-      if (drop <= 1e-10 * Math.max(1, chi2)) {
-        converged = true;
-        break;
-      }
-    } else {
-      lambda *= 10;
-      if (lambda > 1e12) {
-        converged = true; // no step lowers χ²: at the minimum to machine precision
-        break;
-      }
-    }
-  }
-  normal = buildNormal(p).jtj;
-  const cov = invertSymmetric(normal);
+  const lm = levenbergMarquardt(problem, [best.k0, best.lnA, best.ea]);
+  const p = lm.params;
+  const chi2 = lm.objective;
+  const converged = lm.stop === 'converged';
+  // For least squares the objective's Gauss–Newton Hessian is 2·JᵀWJ, so the covariance is 2·H⁻¹.
+  const inv = invertSymmetric(lm.hessian, 3);
+  const cov = inv ? inv.map((v) => 2 * v) : null;
   const aPerS = Math.exp(p[1]);
-  const sd = (i: number) => (cov && cov[i][i] >= 0 ? Math.sqrt(cov[i][i]) : NaN);
+  const sd = (i: number) => (cov && cov[i * 3 + i] >= 0 ? Math.sqrt(cov[i * 3 + i]) : NaN);
   return {
     k0PerS: p[0],
     k0ErrPerS: sd(0),
