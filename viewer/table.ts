@@ -215,6 +215,9 @@ function buildColumns(samples: SampleResult[]): { columns: Column[]; notesColumn
 
 export type StatusFilter = 'all' | 'ok' | 'failed' | 'warnings';
 
+/** Rows put into the page per task. */
+const ROW_SLICE = 100;
+
 export interface SampleTable {
   element: HTMLElement;
   /** Sample indices in the order shown (filtered and sorted). */
@@ -317,10 +320,21 @@ export function createSampleTable(samples: SampleResult[], onSelect: (index: num
       th.setAttribute('aria-sort', ci !== sortCol ? 'none' : sortDir === 1 ? 'ascending' : 'descending'),
     );
     clear(tbody);
-    const batch = document.createDocumentFragment();
-    for (const i of order) batch.appendChild(rows[i]);
-    tbody.appendChild(batch);
+    clearTimeout(pendingRows);
+    attachRows(0);
     countNote.textContent = `${order.length} of ${samples.length} samples shown`;
+  }
+
+  // Rows go into the page in slices: the first slice at once, the rest in later tasks, so that a
+  // table of hundreds of samples does not hold up the first drawn plot. Order, keys and CSV use the
+  // whole list from the start.
+  let pendingRows: ReturnType<typeof setTimeout> | undefined;
+  function attachRows(from: number): void {
+    const to = Math.min(order.length, from + ROW_SLICE);
+    const slice = document.createDocumentFragment();
+    for (let k = from; k < to; k++) slice.appendChild(rows[order[k]]);
+    tbody.appendChild(slice);
+    if (to < order.length) pendingRows = setTimeout(() => attachRows(to), 0);
   }
 
   search.addEventListener('input', () => {
@@ -350,7 +364,8 @@ export function createSampleTable(samples: SampleResult[], onSelect: (index: num
       const tr = rows[index];
       tr.classList.add('lr-selected');
       tr.setAttribute('aria-selected', 'true');
-      // Keep the selected row in view inside the scrolling table only.
+      // Keep the selected row in view inside the scrolling table only (once it is in the page).
+      if (!tr.isConnected) return;
       const top = tr.offsetTop - (table.tHead?.offsetHeight ?? 0);
       if (top < scroller.scrollTop) scroller.scrollTop = top;
       else if (tr.offsetTop + tr.offsetHeight > scroller.scrollTop + scroller.clientHeight)

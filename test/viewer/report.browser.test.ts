@@ -318,3 +318,30 @@ describe('the demo series', () => {
     expect(problems).toEqual([]);
   });
 });
+
+describe('a large report', () => {
+  it('puts every row in the table, in slices, and keeps the sorted order across them', async () => {
+    const data = fixtureReport({ samples: 250, channels: 128, series: false });
+    const path = join(OUTPUT_DIR, 'large-report.html');
+    writeReport(data, path);
+    problems.length = 0;
+    await open(path);
+    const n = data.samples.length;
+    await page.waitForFunction(
+      (count) => document.querySelectorAll('.lr-table tbody tr').length === count,
+      n,
+    );
+    await page.locator('.lr-table th .lr-sort', { hasText: 'τ1 (ns)' }).click();
+    await page.waitForFunction(
+      (count) => document.querySelectorAll('.lr-table tbody tr').length === count,
+      n,
+    );
+    const order = await page.$$eval('.lr-table tbody tr', (rows) =>
+      rows.map((r) => Number(r.getAttribute('data-index'))),
+    );
+    expect(new Set(order).size).toBe(n);
+    const taus = order.map((i) => data.samples[i].fit?.components[0]?.tauNs ?? Infinity);
+    expect(taus).toEqual([...taus].sort((a, b) => a - b));
+    expect(problems).toEqual([]);
+  });
+});
