@@ -25,6 +25,7 @@ interface FitCliOptions {
   irfModel?: string;
   tailFrom?: string;
   scatter?: boolean;
+  resampleIrf?: boolean;
   allowNegative?: boolean;
   maxIterations?: string;
   json?: boolean;
@@ -123,6 +124,7 @@ export function fitOptionsFromCli(
   if (o.maxIterations !== undefined) options.maxIterations = number(o.maxIterations, '--max-iterations');
   if (o.profile) options.profile = true;
   if (o.scatter) options.scatter = true;
+  if (o.resampleIrf) options.resampleIrf = true;
   if (o.allowNegative) options.allowNegativeAmplitudes = true;
   if (o.tailFrom !== undefined) {
     if (o.irf) optionError('--tail-from fits the tail without an IRF; leave out --irf');
@@ -272,6 +274,10 @@ export function register(program: Command): void {
     )
     .option('--tail-from <ns>', 'fit only the tail from this time, without an IRF')
     .option('--scatter', 'add a scatter term (a fraction of the IRF itself)')
+    .option(
+      '--resample-irf',
+      "rebin an IRF recorded with another channel width onto the decay's channels (else refused)",
+    )
     .option('--allow-negative', 'allow negative amplitudes (rise components)')
     .option('--max-iterations <n>', 'optimiser iteration limit (default 200)')
     .option('--json', 'print the result as one JSON object (schema in shared/schema.ts)')

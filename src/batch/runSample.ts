@@ -8,7 +8,7 @@ import { InputError } from '../errors.js';
 import { fitDecay } from '../fit/fitDecay.js';
 import { fitGlobal } from '../fit/fitGlobal.js';
 import type { FitOptions } from '../fit/options.js';
-import { checkBinWidthsAgree } from '../io/checkBinWidthsAgree.js';
+import { alignIrfToDecay } from '../io/checkBinWidthsAgree.js';
 import { parseHistogramText } from '../io/parseHistogram.js';
 import { parseSpectrumText } from '../io/parseSpectrum.js';
 import type { Histogram } from '../io/types.js';
@@ -111,8 +111,7 @@ export function sampleHistograms(
   let irf: Histogram | null = null;
   if (s.irf) {
     if (!inputs.irf) throw new InputError(`the IRF file of sample '${s.sample}' was not read`);
-    irf = parseHistogramCached(inputs.irf, s.irf, cache);
-    checkBinWidthsAgree(decay, irf);
+    irf = alignIrfToDecay(decay, parseHistogramCached(inputs.irf, s.irf, cache), s.fit.resampleIrf ?? false);
   }
   return { decay, irf };
 }

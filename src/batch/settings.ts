@@ -34,7 +34,14 @@ export interface BatchSettings {
   /** Fit options that have no manifest column. */
   fit: Pick<
     FitOptions,
-    'irfMode' | 'scatter' | 'maxIterations' | 'allowNegativeAmplitudes' | 'bounds' | 'bootstrap' | 'profile'
+    | 'irfMode'
+    | 'resampleIrf'
+    | 'scatter'
+    | 'maxIterations'
+    | 'allowNegativeAmplitudes'
+    | 'bounds'
+    | 'bootstrap'
+    | 'profile'
   >;
   /** Seed for anything random. Default: 1. */
   seed: number;
@@ -65,6 +72,7 @@ export const EMPTY_SETTINGS: BatchSettings = { defaults: {}, fit: {}, seed: 1, s
 
 const FIT_KEYS: Record<string, keyof BatchSettings['fit']> = {
   irf_mode: 'irfMode',
+  resample_irf: 'resampleIrf',
   scatter: 'scatter',
   max_iterations: 'maxIterations',
   allow_negative_amplitudes: 'allowNegativeAmplitudes',
@@ -130,7 +138,7 @@ function lineColumnAt(text: string, offset: number): { line: number; column: num
 /**
  * Reads a settings file: JSON with `//` comments allowed (lumirate's template explains every key in
  * comments). Top-level keys: any manifest column except sample and decay as a per-sample default,
- * plus `irf_mode`, `scatter`, `max_iterations`, `allow_negative_amplitudes`, `bounds`, `bootstrap`,
+ * plus `irf_mode`, `resample_irf`, `scatter`, `max_iterations`, `allow_negative_amplitudes`, `bounds`, `bootstrap`,
  * `profile`, `seed` and `series`.
  */
 export function parseSettings(text: string, options: { source: string }): BatchSettings {
@@ -188,6 +196,7 @@ function checkFitKey(key: string, value: unknown, where: InputLocation): unknown
       }
       return value;
     case 'scatter':
+    case 'resample_irf':
     case 'profile':
     case 'allow_negative_amplitudes':
       if (typeof value !== 'boolean')
@@ -475,6 +484,9 @@ export const SETTINGS_TEMPLATE = `// lumirate batch settings. JSON with // comme
 
   // How the IRF enters: "measured", "gaussian" or "none" (tail fit).
   // "irf_mode": "measured",
+
+  // Rebin an IRF recorded with another channel width onto the decay's channels (else: refused).
+  "resample_irf": false,
 
   // Include a scatter term shaped like the IRF.
   "scatter": false,

@@ -1,6 +1,6 @@
 import type { FitResult } from '../../shared/schema.js';
 import { InputError } from '../errors.js';
-import { checkBinWidthsAgree } from '../io/checkBinWidthsAgree.js';
+import { alignIrfToDecay } from '../io/checkBinWidthsAgree.js';
 import type { Histogram } from '../io/types.js';
 import { addBootstrap } from './bootstrap.js';
 import { fitModel } from './fitModel.js';
@@ -15,13 +15,14 @@ import { selectComponents } from './selectComponents.js';
  * and adds profile-likelihood intervals (`profile`) and a parametric bootstrap (`bootstrap` > 0)
  * when asked. Inputs are never changed.
  */
-export function fitDecay(decay: Histogram, irf: Histogram | null, options: FitOptions = {}): FitResult {
+export function fitDecay(decay: Histogram, irfIn: Histogram | null, options: FitOptions = {}): FitResult {
   const components = options.components ?? 1;
   if (components !== 'auto' && !(Number.isInteger(components) && components >= 1 && components <= 4))
     throw new InputError(`the number of components must be 1, 2, 3, 4 or auto, got ${components}`, {
       file: decay.source,
     });
-  if (irf && (options.irfMode ?? 'measured') === 'measured') checkBinWidthsAgree(decay, irf);
+  const measured = irfIn !== null && (options.irfMode ?? 'measured') === 'measured';
+  const irf = measured ? alignIrfToDecay(decay, irfIn, options.resampleIrf ?? false) : irfIn;
   const bootstrap = options.bootstrap ?? 0;
   if (!(Number.isInteger(bootstrap) && bootstrap >= 0))
     throw new InputError(`the number of bootstrap replicates must be a whole number ≥ 0, got ${bootstrap}`, {
@@ -38,5 +39,9 @@ export function fitDecay(decay: Histogram, irf: Histogram | null, options: FitOp
       : fitModel(decay, irf, { ...options, components });
   if (options.profile) result = addProfileIntervals(result, decay, irf, options, fitModel);
   if (bootstrap > 0) result = addBootstrap(result, decay, irf, options, fitModel);
+  if (irf && irfIn && irf !== irfIn) {
+    const added = irf.warnings.filter((w) => !irfIn.warnings.includes(w));
+    result = { ...result, warnings: [...result.warnings, ...added] };
+  }
   return result;
 }

@@ -30,6 +30,11 @@ export interface FitOptions {
   irfMode?: 'measured' | 'gaussian' | 'none';
   /** Tail fit only: where the fitted tail starts, ns. Default: peak channel + 2 IRF widths. */
   tailStartNs?: number;
+  /**
+   * When the IRF's channel width differs from the decay's, rebin the IRF onto the decay's channels
+   * (counts-conserving) instead of refusing. Default: false (widths must agree within 0.1 %).
+   */
+  resampleIrf?: boolean;
   /** Include a scatter term (a fraction of the IRF itself). Default: false. */
   scatter?: boolean;
   /** Parametric bootstrap replicates. Default: 0 (none). */

@@ -1,6 +1,7 @@
 import { InputError } from '../errors.js';
 import type { Histogram } from './types.js';
 import { AXIS_TOLERANCE } from './parseHistogram.js';
+import { resampleHistogram } from './resampleHistogram.js';
 import { formatNumber, relativeDiffers } from './validate.js';
 
 /**
@@ -14,4 +15,24 @@ export function checkBinWidthsAgree(decay: Histogram, irf: Histogram): void {
       { file: decay.source },
     );
   }
+}
+
+/**
+ * The IRF on the decay's channel width: unchanged when the widths agree; rebinned (counts-conserving)
+ * when they differ and `resample` is true; otherwise the InputError of checkBinWidthsAgree. The IRF's
+ * shape is what reconvolution uses, so rebinning it costs no Poisson property the fit relies on.
+ */
+export function alignIrfToDecay(decay: Histogram, irf: Histogram, resample: boolean): Histogram {
+  if (!resample || !relativeDiffers(decay.binWidthNs, irf.binWidthNs, AXIS_TOLERANCE)) {
+    checkBinWidthsAgree(decay, irf);
+    return irf;
+  }
+  const out = resampleHistogram(irf, decay.binWidthNs);
+  return {
+    ...out,
+    warnings: [
+      ...out.warnings,
+      `the IRF ${irf.source} was resampled from ${formatNumber(irf.binWidthNs)} ns to the decay's ${formatNumber(decay.binWidthNs)} ns channels`,
+    ],
+  };
 }

@@ -8,7 +8,7 @@ export {
 export { parseArrivalsText, MAX_ARRIVAL_CHANNELS, type ArrivalsParseOptions } from './parseArrivals.js';
 export { parseSpectrumText, type SpectrumParseOptions } from './parseSpectrum.js';
 export { splitSourceRef } from './sourceRef.js';
-export { checkBinWidthsAgree } from './checkBinWidthsAgree.js';
+export { checkBinWidthsAgree, alignIrfToDecay } from './checkBinWidthsAgree.js';
 export { resampleHistogram } from './resampleHistogram.js';
 export { cropHistogram, type CropWindow } from './cropHistogram.js';
 export { decodeText } from './decodeText.js';
