@@ -207,9 +207,19 @@ export function reportDataFromJson(
   );
 }
 
-/** Series results from a file holding one SeriesResult or an array of them. */
+/**
+ * Series results from a file holding one SeriesResult, an array of them, or a batch's series.json
+ * (`{ schemaVersion, series: [...] }`).
+ */
 export function seriesFromJson(value: unknown, file: string): SeriesResult[] {
-  const items = Array.isArray(value) ? value : [value];
+  const wrapped =
+    typeof value === 'object' &&
+    value !== null &&
+    !Array.isArray(value) &&
+    Array.isArray((value as { series?: unknown }).series)
+      ? (value as { series: unknown[] }).series
+      : value;
+  const items = Array.isArray(wrapped) ? wrapped : [wrapped];
   items.forEach((item, k) => {
     if (!isSeriesResult(item))
       throw new InputError(

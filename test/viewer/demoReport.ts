@@ -20,6 +20,8 @@ export interface OpenedReport {
   source: 'demo' | 'fixture';
   /** The batch's results.json, for the demo. */
   results?: string;
+  /** The batch's series.json, for the demo when it fitted series. */
+  series?: SeriesResult[];
 }
 
 function runCli(args: string[]): { status: number | null; stderr: string; stdout: string } {
@@ -37,7 +39,16 @@ export function demoReport(): OpenedReport {
   if (existsSync(manifest)) {
     const out = join(OUTPUT_DIR, 'demo');
     rmSync(out, { recursive: true, force: true });
-    const batch = runCli(['batch', manifest, '--out', out, '--quiet']);
+    // The same run as `npm run demo`: the manifest with its settings (which ask for the series).
+    const settings = join(ROOT, 'sample-data', 'settings.json');
+    const batch = runCli([
+      'batch',
+      manifest,
+      ...(existsSync(settings) ? ['--settings', settings] : []),
+      '--out',
+      out,
+      '--quiet',
+    ]);
     const results = join(out, 'results.json');
     // Exit 4 means "finished, some samples failed": the demo may include a deliberately bad sample.
     if ((batch.status !== 0 && batch.status !== 4) || !existsSync(results))
@@ -53,6 +64,9 @@ export function demoReport(): OpenedReport {
       samples: JSON.parse(readFileSync(results, 'utf8')) as SampleResult[],
       source: 'demo',
       results,
+      series: existsSync(join(out, 'series.json'))
+        ? (JSON.parse(readFileSync(join(out, 'series.json'), 'utf8')) as { series: SeriesResult[] }).series
+        : undefined,
     };
   }
   const data: ReportData = fixtureReport({ samples: 12, channels: 4096 });

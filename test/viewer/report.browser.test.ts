@@ -225,6 +225,13 @@ describe(`the report in headless Chromium`, () => {
     expect(download.suggestedFilename()).toMatch(/-decay\.png$/);
   });
 
+  it('shows the series the batch fitted, each drawn', async () => {
+    const expected = report.series?.length ?? 0;
+    expect(await page.locator('.lr-series .lr-series-block').count()).toBe(expected);
+    if (expected > 0)
+      (await pixelsNear('.lr-series canvas', '#D55E00')).forEach((n) => expect(n).toBeGreaterThan(50));
+  });
+
   it('raised no console errors, page errors, dialogs or network requests', () => {
     expect(problems).toEqual([]);
   });

@@ -80,6 +80,15 @@ describe('lumirate view', () => {
     expect(got.series.map((s) => s.model)).toEqual(['arrhenius', 'stern-volmer', 'arrhenius']);
   });
 
+  it("reads a batch's series.json, which wraps its series in an object", async () => {
+    const results = join(dir, 'results.json');
+    const seriesFile = join(dir, 'batch-series.json');
+    writeFileSync(seriesFile, JSON.stringify({ schemaVersion: '1.0.0', series: data.series }));
+    const out = join(dir, 'with-series.html');
+    expect(await view(results, '--out', out, '--series', seriesFile, '--quiet')).toBe(0);
+    expect(embedded(out).series.map((s) => s.model)).toEqual(['arrhenius', 'stern-volmer']);
+  });
+
   it('names the file, line and column of broken JSON, exits 2 and writes nothing', async () => {
     const bad = join(dir, 'bad', 'results.json');
     mkdirSync(join(dir, 'bad'));
