@@ -46,6 +46,7 @@ const SYMBOLS: Record<string, string> = {
   fretEfficiency: 'E (transfer efficiency)',
   efficiency: 'η = τ/τ plateau',
   temperature: 'T',
+  plateauSamples: 'samples in the plateau',
 };
 
 export function splitUnit(name: string): { base: string; unit: string; suffix: string } {

@@ -47,7 +47,8 @@ describe('parameter names', () => {
     expect(displayName('eaEv')).toBe('Eₐ (eV)');
     expect(displayName('kqPerMPerS')).toBe('k_q (M⁻¹ s⁻¹)');
     expect(displayName('temperature_k')).toBe('T (K)');
-    expect(displayName('plateauSamples')).toBe('plateauSamples');
+    expect(displayName('plateauSamples')).toBe('samples in the plateau');
+    expect(displayName('someCount')).toBe('someCount');
   });
 
   it('pair each parameter with its error, in either naming, and per-sample entries by their sample', () => {
