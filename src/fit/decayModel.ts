@@ -92,9 +92,8 @@ export class DecayModel {
   private readonly dShiftBasis: Float64Array;
   private readonly irfShifted: Float64Array;
   private readonly dIrf: Float64Array;
-  private readonly full: Float64Array;
   private readonly shiftAcc: Float64Array;
-  private readonly work: Float64Array;
+  private work: Float64Array | null = null;
   private readonly slopes: Float64Array | null;
 
   constructor(readonly setup: DecayModelSetup) {
@@ -106,9 +105,7 @@ export class DecayModel {
     this.dShiftBasis = new Float64Array(n);
     this.irfShifted = new Float64Array(n);
     this.dIrf = new Float64Array(n);
-    this.full = new Float64Array(n);
     this.shiftAcc = new Float64Array(n);
-    this.work = new Float64Array(n);
     this.slopes = setup.irf ? irfSlopes(setup.irf) : null;
   }
 
@@ -266,7 +263,8 @@ export class DecayModel {
     if (wantC) jac!.fill(0, oc + i0, oc + i1);
     if (wantS) jac!.fill(0, os + i0, os + i1);
     const g = this.basis;
-    const w = this.work;
+    // Second curve of each central difference; only this mode needs it.
+    const w = (this.work ??= new Float64Array(n));
     // Adds c·(f(+h) − f(−h))/(2h) of a curve family into a Jacobian row.
     const central = (o: number, c: number, h: number, eval2: (sign: number, out: Float64Array) => void) => {
       eval2(1, g);

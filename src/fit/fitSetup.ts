@@ -128,16 +128,24 @@ export function resolveFitSetup(
         `the decay ${decay.source} has ${dt} ns channels but the IRF ${irf.source} has ${irf.binWidthNs} ns; both must share one channel grid`,
         { file: irf.source },
       );
-    // Put the IRF on the decay's channel grid (whole-channel offset of the time origins; pad with 0).
+    // Background removed on the IRF's own axis (padding first would put zeros among the baseline
+    // channels), then put on the decay's channel grid: whole-channel offset of the time origins,
+    // 0 outside, renormalised if a part falls off either end.
+    const prepared = prepareIrf(irf.counts);
+    if (!prepared) throw new InputError('the IRF holds no counts above its baseline', { file: irf.source });
     const offset = Math.round((irf.timeNs[0] - decay.timeNs[0]) / dt);
     const aligned = new Float64Array(n);
+    let kept = 0;
     for (let k = 0; k < irf.counts.length; k++) {
       const i = k + offset;
-      if (i >= 0 && i < n) aligned[i] = irf.counts[k];
+      if (i >= 0 && i < n) kept += aligned[i] = prepared.fractions[k];
     }
-    const prepared = prepareIrf(aligned);
-    if (!prepared) throw new InputError('the IRF holds no counts above its baseline', { file: irf.source });
-    irfFractions = prepared.fractions;
+    if (!(kept > 0))
+      throw new InputError(`the IRF ${irf.source} lies outside the decay's time window`, {
+        file: irf.source,
+      });
+    if (kept !== 1) for (let i = 0; i < n; i++) aligned[i] /= kept;
+    irfFractions = aligned;
     irfFwhmChannels = Math.max(prepared.fwhmChannels, 1);
   } else {
     // Rising edge 10 → 90 % spans ≈ 2.56σ of a Gaussian; a rough IRF width for defaults and starts.

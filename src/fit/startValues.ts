@@ -102,18 +102,24 @@ export function gridStarts(
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
 
-  // Columns over the fit range, packed in one array: grid bases, fixed-lifetime bases, background,
-  // scatter.
+  // Starting values need no more than ~1000 channels: every stride-th one of the fit range, weighted
+  // up to match. Columns over those channels, packed in one array: grid bases, fixed-lifetime bases,
+  // background, scatter.
+  const stride = Math.max(1, Math.floor(nFit / 1000));
+  const M = Math.ceil(nFit / stride);
   const fixedCount = opts.fixedTauNs.filter((t) => t > 0).length;
   const bgCol = opts.fixedBackground === null ? grid.length + fixedCount : -1;
   const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
   const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
   const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
-  const flat = new Float64Array(C * nFit);
+  const flat = new Float64Array(C * M);
   const full = new Float64Array(s.channels);
+  const gather = (curve: Float64Array, column: number, scale: number) => {
+    for (let k = 0, i = i0; k < M; k++, i += stride) flat[column * M + k] = scale * curve[i];
+  };
   for (let k = 0; k < grid.length; k++) {
     model.basisCurve(base, grid[k], full, k > 0);
-    flat.set(full.subarray(i0, i1), k * nFit);
+    gather(full, k, 1);
   }
   const fixedCol: number[] = [];
   let next = grid.length;
@@ -121,30 +127,26 @@ export function gridStarts(
     if (opts.fixedTauNs[j] > 0) {
       model.basisCurve(base, opts.fixedTauNs[j], full);
       fixedCol[j] = next;
-      flat.set(full.subarray(i0, i1), next++ * nFit);
+      gather(full, next++, 1);
     }
   }
-  if (bgCol >= 0) flat.fill(1, bgCol * nFit, (bgCol + 1) * nFit);
-  if (scCol >= 0) for (let i = 0; i < nFit; i++) flat[scCol * nFit + i] = s.scatterScale * irfCurve![i0 + i];
-  const y = new Float64Array(nFit);
-  const w = new Float64Array(nFit);
-  const wy = new Float64Array(nFit);
-  for (let i = 0; i < nFit; i++) {
-    let v = counts[i0 + i];
-    w[i] = 1 / Math.max(v, 1);
+  if (bgCol >= 0) flat.fill(1, bgCol * M, (bgCol + 1) * M);
+  if (scCol >= 0) gather(irfCurve!, scCol, s.scatterScale);
+  const w = new Float64Array(M);
+  const wy = new Float64Array(M);
+  let yWy = 0;
+  for (let k = 0, i = i0; k < M; k++, i += stride) {
+    let v = counts[i];
+    w[k] = stride / Math.max(v, 1);
     if (opts.fixedBackground !== null) v -= opts.fixedBackground;
-    if (irfCurve && opts.fixedScatter !== null) v -= opts.fixedScatter * s.scatterScale * irfCurve[i0 + i];
-    y[i] = v;
-    wy[i] = w[i] * v;
+    if (irfCurve && opts.fixedScatter !== null) v -= opts.fixedScatter * s.scatterScale * irfCurve[i];
+    wy[k] = w[k] * v;
+    yWy += wy[k] * v;
   }
   const gram = new Float64Array(C * C);
   const rhs = new Float64Array(C);
-  // Starting values need no more than ~1000 channels: every stride-th one, weighted up to match.
-  const stride = Math.max(1, Math.floor(nFit / 1000));
-  let yWy = 0;
-  for (let i = 0; i < nFit; i += stride) yWy += stride * w[i] * y[i] * y[i];
   // Gram matrix and projection of the data in one pass.
-  weightedGram(flat, C, nFit, w, wy, stride, gram, rhs);
+  weightedGram(flat, C, M, w, wy, gram, rhs);
 
   // Every ascending choice of grid lifetimes for the free slots.
   const combos: number[][] = [];
