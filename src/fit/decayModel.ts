@@ -92,7 +92,6 @@ export class DecayModel {
   private readonly dShiftBasis: Float64Array;
   private readonly irfShifted: Float64Array;
   private readonly dIrf: Float64Array;
-  private readonly shiftAcc: Float64Array;
   private work: Float64Array | null = null;
   private readonly slopes: Float64Array | null;
 
@@ -105,7 +104,6 @@ export class DecayModel {
     this.dShiftBasis = new Float64Array(n);
     this.irfShifted = new Float64Array(n);
     this.dIrf = new Float64Array(n);
-    this.shiftAcc = new Float64Array(n);
     this.slopes = setup.irf ? irfSlopes(setup.irf) : null;
   }
 
@@ -173,45 +171,59 @@ export class DecayModel {
       const irf = s.irf as Float64Array;
       const wantShift = jac !== null && freeRow[L.shift] >= 0;
       shiftIrf(irf, all[L.shift] / dt, this.irfShifted, wantShift ? this.dIrf : null, this.slopes);
-      if (wantShift) this.shiftAcc.fill(0);
+      // The shift row (per ns) accumulates straight into the Jacobian: Σ coefficient/Δ · ∂curve/∂s.
+      const os = wantShift ? freeRow[L.shift] * nFit - i0 : 0;
+      if (wantShift) jac!.fill(0, os + i0, os + i1);
+      const irfShifted = this.irfShifted;
       if (L.scatter >= 0) {
         const c = all[L.scatter] * s.scatterScale;
-        for (let i = 0; i < n; i++) full[i] += c * this.irfShifted[i];
+        for (let i = 0; i < n; i++) full[i] += c * irfShifted[i];
         if (jac && freeRow[L.scatter] >= 0) {
           const o = freeRow[L.scatter] * nFit - i0;
-          for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * this.irfShifted[i];
+          for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * irfShifted[i];
         }
-        if (wantShift) for (let i = 0; i < n; i++) this.shiftAcc[i] += c * this.dIrf[i];
+        if (wantShift) {
+          const k = c / dt;
+          const dIrf = this.dIrf;
+          for (let i = i0; i < i1; i++) jac![os + i] += k * dIrf[i];
+        }
       }
+      const basis = this.basis;
+      const dBasis = this.dBasis;
+      const dShiftBasis = this.dShiftBasis;
       for (let j = 0; j < s.nComponents; j++) {
         const a = all[L.amplitude[j]];
         const tau = Math.exp(all[L.lnTau[j]]);
         const wantTau = jac !== null && freeRow[L.lnTau[j]] >= 0;
         exponentialBasis(
-          this.irfShifted,
+          irfShifted,
           dt,
           tau,
           s.periodNs,
-          this.basis,
-          wantTau ? this.dBasis : null,
+          basis,
+          wantTau ? dBasis : null,
           wantShift ? this.dIrf : null,
-          wantShift ? this.dShiftBasis : null,
+          wantShift ? dShiftBasis : null,
         );
-        for (let i = 0; i < n; i++) full[i] += a * this.basis[i];
-        if (jac) {
-          const ra = freeRow[L.amplitude[j]];
-          if (ra >= 0) jac.set(this.basis.subarray(i0, i1), ra * nFit);
-          if (wantTau) {
-            const o = freeRow[L.lnTau[j]] * nFit - i0;
-            for (let i = i0; i < i1; i++) jac[o + i] = a * this.dBasis[i];
-          }
-          if (wantShift) for (let i = i0; i < i1; i++) this.shiftAcc[i] += a * this.dShiftBasis[i];
+        for (let i = 0; i < i0; i++) full[i] += a * basis[i];
+        for (let i = i1; i < n; i++) full[i] += a * basis[i];
+        if (!jac) {
+          for (let i = i0; i < i1; i++) full[i] += a * basis[i];
+          continue;
         }
-      }
-      if (wantShift) {
-        // ∂/∂shift per channel → per ns.
-        const o = freeRow[L.shift] * nFit - i0;
-        for (let i = i0; i < i1; i++) jac![o + i] = this.shiftAcc[i] / dt;
+        // One pass over the fit range for the model and every Jacobian row of this component.
+        const ra = freeRow[L.amplitude[j]];
+        const wantAmp = ra >= 0;
+        const oa = ra * nFit - i0;
+        const ot = wantTau ? freeRow[L.lnTau[j]] * nFit - i0 : 0;
+        const ks = a / dt;
+        for (let i = i0; i < i1; i++) {
+          const b = basis[i];
+          full[i] += a * b;
+          if (wantAmp) jac[oa + i] = b;
+          if (wantTau) jac[ot + i] = a * dBasis[i];
+          if (wantShift) jac[os + i] += ks * dShiftBasis[i];
+        }
       }
     } else if (s.mode === 'none') {
       for (let j = 0; j < s.nComponents; j++) {
