@@ -35,8 +35,6 @@ export function formatNumber(value: number, options: FormatOptions = {}): string
   if (!Number.isFinite(value)) return String(value);
   if (value === 0) return '0';
   const mag = Math.abs(value);
-  // Whole numbers within the plain range are counts (samples, degrees of freedom): print them whole.
-  if (Number.isInteger(value) && mag < plainBelow) return String(value);
   if (mag >= plainBelow || mag < 1 / plainBelow) {
     const exp = leadingExponent(value);
     const mantissa = Number((value / 10 ** exp).toFixed(digits - 1));

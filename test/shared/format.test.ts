@@ -33,11 +33,6 @@ describe('formatValueError', () => {
 });
 
 describe('formatNumber', () => {
-  it('prints whole numbers below the exponent range whole (counts, degrees of freedom)', () => {
-    expect(formatNumber(1)).toBe('1');
-    expect(formatNumber(3981)).toBe('3981');
-    expect(formatNumber(1.5)).toBe('1.500');
-  });
   it('uses four significant digits by default', () => {
     expect(formatNumber(0.0123456)).toBe('0.01235');
     expect(formatNumber(2.880881e-9)).toBe('2.881e-9');
