@@ -3,9 +3,10 @@ import { choleskySolve, weightedGram } from './lm.js';
 
 /**
  * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest
- * lifetime's scale; a coarse geometric grid of lifetimes around it (one component: τ_tail·2^k,
- * k = −4 … 4; more components: k = −6, −4.5, −3, −1.5, 0, 1, 2.5) is tried in every combination, each
- * with its amplitudes, background and scatter solved by weighted linear least squares (weights
+ * lifetime's scale; a geometric grid of lifetimes around it (one component: τ_tail·2^k,
+ * k = −4 … 4; more components: k = −6 … 0 in steps of 0.75, then 0.5, 1, 1.75, 2.5; steps finer than
+ * 2^1.5 start a 2-exponential fit close enough to save an iteration) is tried in every combination,
+ * each with its amplitudes, background and scatter solved by weighted linear least squares (weights
  * 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best few combinations
  * start the full fit.
  */
@@ -97,7 +98,10 @@ export function gridStarts(
   // The log-slope can mislead both ways (a Gaussian IRF's own tail looks like a very short lifetime,
   // a background slope like a long one), so the grid reaches well beyond it on both sides.
   if (nc === 1) grid = [-4, -3, -2, -1, 0, 1, 2, 3, 4].map((k) => opts.tauTailNs * 2 ** k);
-  else grid = [-6, -4.5, -3, -1.5, 0, 1, 2.5].map((k) => opts.tauTailNs * 2 ** k);
+  else
+    grid = [-6, -5.25, -4.5, -3.75, -3, -2.25, -1.5, -0.75, 0, 0.5, 1, 1.75, 2.5].map(
+      (k) => opts.tauTailNs * 2 ** k,
+    );
   grid = grid.map((t) => Math.min(hi, Math.max(lo, t)));
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
@@ -164,51 +168,76 @@ export function gridStarts(
   const Lw = new Float64Array(maxP * maxP);
   const b = new Float64Array(maxP);
   const sol = new Float64Array(maxP);
-  const results: StartCandidate[] = [];
-  for (const combo of combos) {
-    // Column per component, then background and scatter.
-    const cols: number[] = [];
-    let f = 0;
-    for (let j = 0; j < nc; j++) cols.push(opts.fixedTauNs[j] > 0 ? fixedCol[j] : combo[f++]);
-    if (bgCol >= 0) cols.push(bgCol);
-    if (scCol >= 0) cols.push(scCol);
-    const active = cols.map(() => true);
-    const coef = new Float64Array(cols.length);
-    let ok = false;
-    for (let attempt = 0; attempt <= cols.length; attempt++) {
-      const idx = cols.map((_, k) => k).filter((k) => active[k]);
-      const P = idx.length;
+  const cols = new Int32Array(maxP);
+  const active = new Uint8Array(maxP);
+  const idx = new Int32Array(maxP);
+  const coef = new Float64Array(maxP);
+  // Non-negative weighted least squares of one combination (columns in `cols`, count K) by active
+  // set: the most negative coefficient that must not be negative is dropped and the rest solved
+  // again. Leaves the coefficients in `coef` and returns χ² = yᵀWy − 2cᵀr + cᵀGc, or NaN.
+  const solve = (K: number): number => {
+    active.fill(1, 0, K);
+    for (let attempt = 0; attempt <= K; attempt++) {
+      let P = 0;
+      for (let k = 0; k < K; k++) if (active[k]) idx[P++] = k;
       for (let a = 0; a < P; a++) {
         b[a] = rhs[cols[idx[a]]];
         for (let c = 0; c < P; c++) A[a * P + c] = gram[cols[idx[a]] * C + cols[idx[c]]];
         A[a * P + a] *= 1 + 1e-12;
       }
       coef.fill(0);
-      if (P > 0 && !choleskySolve(A, b, sol, Lw, P)) break;
+      if (P > 0 && !choleskySolve(A, b, sol, Lw, P)) return NaN;
       for (let a = 0; a < P; a++) coef[idx[a]] = sol[a];
-      // Drop the most negative coefficient that must not be negative, and solve again.
       let worst = -1;
-      for (let k = 0; k < cols.length; k++) {
+      for (let k = 0; k < K; k++) {
         const mayBeNegative = k < nc && opts.allowNegative;
         if (active[k] && !mayBeNegative && coef[k] < 0 && (worst < 0 || coef[k] < coef[worst])) worst = k;
       }
       if (worst < 0) {
-        ok = true;
-        break;
+        let chi2 = yWy;
+        for (let a = 0; a < K; a++) {
+          chi2 -= 2 * coef[a] * rhs[cols[a]];
+          for (let c = 0; c < K; c++) chi2 += coef[a] * coef[c] * gram[cols[a] * C + cols[c]];
+        }
+        return chi2;
       }
-      active[worst] = false;
+      active[worst] = 0;
     }
-    if (!ok) continue;
-    // χ² = yᵀWy − 2cᵀr + cᵀGc.
-    let chi2 = yWy;
-    for (let a = 0; a < cols.length; a++) {
-      chi2 -= 2 * coef[a] * rhs[cols[a]];
-      for (let c = 0; c < cols.length; c++) chi2 += coef[a] * coef[c] * gram[cols[a] * C + cols[c]];
-    }
+    return NaN;
+  };
+  // Column per component, then background and scatter.
+  const setColumns = (combo: number[]): number => {
+    let f = 0;
+    let K = 0;
+    for (let j = 0; j < nc; j++) cols[K++] = opts.fixedTauNs[j] > 0 ? fixedCol[j] : combo[f++];
+    if (bgCol >= 0) cols[K++] = bgCol;
+    if (scCol >= 0) cols[K++] = scCol;
+    return K;
+  };
+  const ranked: { combo: number[]; chi2: number }[] = [];
+  for (const combo of combos) {
+    const chi2 = solve(setColumns(combo));
+    if (!Number.isNaN(chi2)) ranked.push({ combo, chi2 });
+  }
+  ranked.sort((p, q) => p.chi2 - q.chi2);
+  // Parameter vectors for the best few only: solved again, which is cheap.
+  const results: StartCandidate[] = [];
+  // The later starts serve when the first fit looks doubtful, so they must differ from it: a
+  // combination whose every lifetime lies within one grid step of an earlier pick is passed over.
+  const picked: number[][] = [];
+  for (const r of ranked) {
+    if (picked.length >= opts.keep) break;
+    const near = picked.some((q) => q.every((g, k) => Math.abs(g - r.combo[k]) <= 1));
+    if (!near) picked.push(r.combo);
+  }
+  for (const combo of picked) {
+    const chi2 = ranked.find((r) => r.combo === combo)!.chi2;
+    const K = setColumns(combo);
+    solve(K);
     const params = Float64Array.from(base);
     let maxAmp = 0;
     for (let j = 0; j < nc; j++) maxAmp = Math.max(maxAmp, Math.abs(coef[j]));
-    f = 0;
+    let f = 0;
     for (let j = 0; j < nc; j++) {
       const tau = opts.fixedTauNs[j] > 0 ? opts.fixedTauNs[j] : grid[combo[f++]];
       params[L.lnTau[j]] = Math.log(tau);
@@ -217,10 +246,9 @@ export function gridStarts(
     }
     // A background of exactly 0 would make the model 0 under stray counts before the pulse (an
     // impossible Poisson model); start it slightly above.
-    if (bgCol >= 0) params[L.background] = Math.max(coef[cols.indexOf(bgCol)], 1e-2);
-    if (scCol >= 0) params[L.scatter] = Math.max(coef[cols.indexOf(scCol)], 0);
+    if (bgCol >= 0) params[L.background] = Math.max(coef[nc], 1e-2);
+    if (scCol >= 0) params[L.scatter] = Math.max(coef[K - 1], 0);
     results.push({ params, chi2 });
   }
-  results.sort((p, q) => p.chi2 - q.chi2);
-  return results.slice(0, opts.keep);
+  return results;
 }
