@@ -248,6 +248,9 @@ export interface SeriesPoint {
   residual: number | null;
 }
 
+/** Series parameters that count things: shown as whole numbers, never with an error or decimals. */
+export const SERIES_COUNT_PARAMETERS: ReadonlySet<string> = new Set(['plateauSamples']);
+
 export interface SeriesResult {
   schemaVersion: string;
   model: SeriesModel;

@@ -2,7 +2,12 @@
  * The cards beside the plots: fit parameters with their uncertainties and diagnostics, rates and the
  * Strickler–Berg comparison, and where the sample came from.
  */
-import type { FitResult, SampleResult, SeriesResult } from '../shared/schema.js';
+import {
+  SERIES_COUNT_PARAMETERS,
+  type FitResult,
+  type SampleResult,
+  type SeriesResult,
+} from '../shared/schema.js';
 import { formatNumber, formatValueError } from '../shared/format.js';
 import { el } from './dom.js';
 import { warningsOf } from './table.js';
@@ -267,9 +272,11 @@ export function seriesParameterRows(parameters: Record<string, number>): [string
     const { base, suffix } = splitUnit(head);
     if (/Err$/.test(base)) continue;
     const errKey = [`${base}Err${suffix}${tail}`, `${head}Err${tail}`].find((k) => k in parameters);
-    const value = errKey
-      ? formatValueError(parameters[key], parameters[errKey])
-      : formatNumber(parameters[key]);
+    const value = SERIES_COUNT_PARAMETERS.has(key)
+      ? String(parameters[key])
+      : errKey
+        ? formatValueError(parameters[key], parameters[errKey])
+        : formatNumber(parameters[key]);
     rows.push([cut < 0 ? displayName(key) : `${displayName(head)}, ${key.slice(cut + 1)}`, value]);
   }
   return rows;

@@ -1,5 +1,5 @@
 import { formatNumber, formatValueError } from '../../shared/format.js';
-import type { SampleResult, SeriesResult } from '../../shared/schema.js';
+import { SERIES_COUNT_PARAMETERS, type SampleResult, type SeriesResult } from '../../shared/schema.js';
 import { csvQuote } from './csvCells.js';
 
 /** Full precision for machine-readable tables: the shortest text that reads back to the same double. */
@@ -187,7 +187,7 @@ export function formatSummaryMarkdown(
       if (/Err/.test(k)) continue;
       const errKey = k.replace(/^([a-zA-Z0-9]+?)(Kj|Ev|Per|Ns|Nm|_)/, '$1Err$2');
       const err = errKey !== k ? sr.parameters[errKey] : undefined;
-      out.push(`| ${escapeMd(k)} | ${cell(v, err)} |`);
+      out.push(`| ${escapeMd(k)} | ${SERIES_COUNT_PARAMETERS.has(k) ? String(v) : cell(v, err)} |`);
     }
     if (sr.chi2Reduced !== null)
       out.push(`| χ²red (${sr.dof} dof) | ${formatNumber(sr.chi2Reduced, { digits: 3 })} |`);

@@ -1,3 +1,4 @@
+import { SCHEMA_VERSION, type SeriesResult } from '../../shared/schema.js';
 import { describe, expect, it } from 'vitest';
 import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
 import { parseCsvCells } from '../../src/batch/csvCells.js';
@@ -46,6 +47,22 @@ describe('summary.md', () => {
     const md = formatSummaryMarkdown(samples, [sr]);
     expect(md).toContain('## Series: stern-volmer against quencher_m');
     expect(md).toMatch(/\| kqPerMPerS \| \(1\.0\d* ± 0\.\d+\)e10 \|/);
+  });
+
+  it('prints a count among the series parameters as a whole number', () => {
+    const sr: SeriesResult = {
+      schemaVersion: SCHEMA_VERSION,
+      model: 'efficiency',
+      xName: 'temperature_k',
+      yName: 'eta',
+      parameters: { tauPlateauNs: 8.94, tauPlateauErrNs: 0.005, plateauSamples: 2 },
+      points: [],
+      chi2Reduced: null,
+      dof: 0,
+      notes: [],
+      warnings: [],
+    };
+    expect(formatSummaryMarkdown([], [sr])).toContain('| plateauSamples | 2 |');
   });
 });
 

@@ -67,4 +67,8 @@ describe('parameter names', () => {
       ['r (nm), d1', '5.10 ± 0.23'],
     ]);
   });
+
+  it('shows a count among the parameters as a whole number', () => {
+    expect(seriesParameterRows({ plateauSamples: 3 })).toEqual([['samples in the plateau', '3']]);
+  });
 });
