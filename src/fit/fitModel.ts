@@ -5,7 +5,14 @@ import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
 import { DecayModel } from './decayModel.js';
 import { durbinWatson, informationCriteria, residualAutocorrelation, runsTest } from './diagnostics.js';
 import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
-import { invertSymmetric, levenbergMarquardt, type LmProblem, type LmResult } from './lm.js';
+import {
+  invertSymmetric,
+  levenbergMarquardt,
+  lmWorkspace,
+  type LmProblem,
+  type LmResult,
+  type LmWorkspace,
+} from './lm.js';
 import type { FitOptions } from './options.js';
 import { gridStarts, tailLifetimeEstimate } from './startValues.js';
 
@@ -201,7 +208,7 @@ function runFit(setup: FitSetup): FitRun {
   // a lifetime or amplitude on a bound, or χ² well above its expected spread), and the lowest
   // objective wins. Most decays need one start, difficult ones get several.
   let best: { lm: LmResult; all: Float64Array } | null = null;
-  for (const start of starts) {
+  for (const [k, start] of starts.entries()) {
     all.set(start.params);
     const p0 = Float64Array.from(free, (k) => start.params[k]);
     const lm = levenbergMarquardt(problem, p0, {
@@ -209,6 +216,9 @@ function runFit(setup: FitSetup): FitRun {
       ftol: 1e-10,
       atol: 1e-5,
       xtol: 1e-9,
+      // The first start's arrays come from a workspace kept between fits (they are the largest
+      // allocations of a fit); later starts get their own, so that the best result so far stays intact.
+      workspace: k === 0 ? workspaceFor(F, nFit) : undefined,
     });
     if (!best || (Number.isFinite(lm.objective) && !(lm.objective >= best.lm.objective))) {
       const final = Float64Array.from(start.params);
@@ -225,6 +235,19 @@ function runFit(setup: FitSetup): FitRun {
         : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
     );
   return { model, all: chosen.all, free, freeRow, lm: chosen.lm, lower, upper };
+}
+
+let sharedWorkspace: LmWorkspace | null = null;
+
+/**
+ * The optimiser's work arrays for this problem size, reused from the previous fit when the size
+ * matches. Safe because a fit's optimiser result is read only before `fitModel` returns, and fits
+ * run one at a time in a thread.
+ */
+function workspaceFor(nParams: number, nPoints: number): LmWorkspace {
+  const w = sharedWorkspace;
+  if (w && w.nParams === nParams && w.nPoints === nPoints) return w;
+  return (sharedWorkspace = lmWorkspace(nParams, nPoints));
 }
 
 /** True when a fit deserves another start: not converged, a lifetime or amplitude on a bound, or a poor objective. */

@@ -51,6 +51,25 @@ export interface LmOptions {
   xtol?: number;
   /** Initial damping λ relative to the Hessian diagonal. Default: 0.1 (from good starts, fewer rejected steps than 1e-3). */
   lambda0?: number;
+  /**
+   * Reusable arrays for the models and Jacobians (the largest allocations of a fit), from
+   * `lmWorkspace`. When given, the result's `model` and `jacobian` live in it and are valid only until
+   * the next call with the same workspace. Default: fresh arrays per call.
+   */
+  workspace?: LmWorkspace;
+}
+
+/** Work arrays that one problem size can reuse across calls (see `LmOptions.workspace`). */
+export interface LmWorkspace {
+  nParams: number;
+  nPoints: number;
+  arrays: Float64Array[];
+}
+
+/** A workspace for problems of `nParams` parameters and `nPoints` points. */
+export function lmWorkspace(nParams: number, nPoints: number): LmWorkspace {
+  const sizes = [nPoints, nPoints, nParams * nPoints, nParams * nPoints, nPoints, nPoints];
+  return { nParams, nPoints, arrays: sizes.map((len) => new Float64Array(len)) };
 }
 
 export type LmStop = 'converged' | 'maxIterations' | 'nonFinite';
@@ -273,10 +292,12 @@ export function levenbergMarquardt(
 
   const p = Float64Array.from(start);
   const trial = new Float64Array(P);
-  let model = new Float64Array(N);
-  let trialModel = new Float64Array(N);
-  let jac = new Float64Array(P * N);
-  let trialJac = new Float64Array(P * N);
+  const ws =
+    options.workspace && options.workspace.nParams === P && options.workspace.nPoints === N
+      ? options.workspace
+      : lmWorkspace(P, N);
+  let [model, trialModel, jac, trialJac] = ws.arrays;
+  const [, , , , dRho, hW] = ws.arrays;
   const g = new Float64Array(P);
   const H = new Float64Array(P * P);
   const A = new Float64Array(P * P);
@@ -284,8 +305,6 @@ export function levenbergMarquardt(
   const rhs = new Float64Array(P);
   const step = new Float64Array(P);
   const scale = new Float64Array(P);
-  const dRho = new Float64Array(N);
-  const hW = new Float64Array(N);
   const active = new Uint8Array(P);
   const atBound = (k: number) =>
     (lower !== undefined && p[k] <= lower[k]) || (upper !== undefined && p[k] >= upper[k]);
