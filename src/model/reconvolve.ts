@@ -339,7 +339,12 @@ export function exponentialBasis(
   let q = n > 0 ? irf[0] : 0;
   let gPrev = 0;
   let gq = wantShift && n > 0 ? (dIrf as Float64Array)[0] : 0;
-  for (let i = 0; i < n; i++) {
+  // Past the last non-zero channel of the IRF (and of ∂irf/∂shift) every q, d and g is 0: the
+  // recursion is a pure exponential, run below with the same arithmetic minus the zero terms (so
+  // the values are identical). A measured IRF usually ends a few hundred channels into the axis.
+  let end = n;
+  while (end > 0 && irf[end - 1] === 0 && (!wantShift || (dIrf as Float64Array)[end - 1] === 0)) end--;
+  for (let i = 0; i < end; i++) {
     const qNext = i + 1 < n ? irf[i + 1] : 0;
     let d = 0.5 * (qNext - qPrev);
     // Limit the slope so that the line stays ≥ 0 across the channel (|d| ≤ 2q): a steep edge on
@@ -367,6 +372,37 @@ export function exponentialBasis(
     S = x * S + q + rh * d;
     qPrev = q;
     q = qNext;
+  }
+  if (dLnTau && wantShift) {
+    const dSh = dShift as Float64Array;
+    for (let i = end; i < n; i++) {
+      out[i] = K * S;
+      dLnTau[i] = dK * S + K * dS;
+      dSh[i] = K * sS;
+      dS = x * dS + dx * S;
+      S = x * S;
+      sS = x * sS;
+    }
+  } else if (dLnTau) {
+    for (let i = end; i < n; i++) {
+      out[i] = K * S;
+      dLnTau[i] = dK * S + K * dS;
+      dS = x * dS + dx * S;
+      S = x * S;
+    }
+  } else if (wantShift) {
+    const dSh = dShift as Float64Array;
+    for (let i = end; i < n; i++) {
+      out[i] = K * S;
+      dSh[i] = K * sS;
+      S = x * S;
+      sS = x * sS;
+    }
+  } else {
+    for (let i = end; i < n; i++) {
+      out[i] = K * S;
+      S = x * S;
+    }
   }
   if (periodNs !== null && periodNs > 0) {
     const R = periodNs / binWidthNs;
