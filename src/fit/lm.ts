@@ -198,7 +198,33 @@ export function weightedGram(
       p += v[i] * c;
     }
     proj[a] = p;
-    for (let b = 0; b <= a; b++) {
+    // Two columns b, b + 1 per pass: four independent sums keep the multiply-add pipeline full and
+    // each wᵢ·cₐᵢ is loaded once for both. Every entry keeps its own even/odd summation order.
+    let b = 0;
+    for (; b + 1 <= a; b += 2) {
+      const ob = b * N;
+      const oc = ob + N;
+      let s0 = 0;
+      let s1 = 0;
+      let t0 = 0;
+      let t1 = 0;
+      let i = 0;
+      for (; i + 1 < N; i += 2) {
+        const w0 = wa[i];
+        const w1 = wa[i + 1];
+        s0 += w0 * cols[ob + i];
+        s1 += w1 * cols[ob + i + 1];
+        t0 += w0 * cols[oc + i];
+        t1 += w1 * cols[oc + i + 1];
+      }
+      if (i < N) {
+        s0 += wa[i] * cols[ob + i];
+        t0 += wa[i] * cols[oc + i];
+      }
+      gram[a * C + b] = gram[b * C + a] = s0 + s1;
+      gram[a * C + b + 1] = gram[(b + 1) * C + a] = t0 + t1;
+    }
+    if (b === a) {
       const ob = b * N;
       let s0 = 0;
       let s1 = 0;
@@ -208,7 +234,7 @@ export function weightedGram(
         s1 += wa[i + 1] * cols[ob + i + 1];
       }
       if (i < N) s0 += wa[i] * cols[ob + i];
-      gram[a * C + b] = gram[b * C + a] = s0 + s1;
+      gram[a * C + b] = s0 + s1;
     }
   }
 }
