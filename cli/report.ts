@@ -1,6 +1,6 @@
 /**
- * Writing the offline HTML report: reads the page bundle and uPlot's files, assembles the page with
- * `assembleReportHtml` and writes it atomically (the batch's `writeFileAtomic`: a temporary file in the
+ * Writing the offline HTML report: reads the page bundle and uPlot's files, writes the page's pieces
+ * (`reportHtmlPieces`) one by one and atomically (the batch's `writeFileAtomic`: a temporary file in the
  * same folder, then a rename), so an interrupted run never leaves half a report.
  *
  * The page bundle is `dist/viewer/app.js` + `app.css`, made by `npm run build`. When the viewer's
@@ -21,7 +21,7 @@ import {
 import { createRequire } from 'node:module';
 import { basename, dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { assembleReportHtml, type ReportAssets } from '../shared/reportHtml.js';
+import { curvesForScript, reportHtmlPieces, type ReportAssets } from '../shared/reportHtml.js';
 import {
   SCHEMA_VERSION,
   isCompatibleSchema,
@@ -104,7 +104,26 @@ export function loadReportAssets(): ReportAssets {
 
 /** Writes the self-contained report for `data` to `outPath`. */
 export function writeReport(data: ReportData, outPath: string): void {
-  writeFileAtomic(outPath, assembleReportHtml(loadReportAssets(), data));
+  writeReportStreamed(
+    data,
+    (i) => {
+      const curves = data.samples[i].fit?.curves;
+      return curves ? curvesForScript(curves) : null;
+    },
+    outPath,
+  );
+}
+
+/**
+ * Writes the report piece by piece, so that a batch of thousands never holds the page as one string:
+ * `data.samples` give the summary, `curvesJson(i)` each sample's curves block (see `reportHtmlPieces`).
+ */
+export function writeReportStreamed(
+  data: ReportData,
+  curvesJson: (i: number) => string | Uint8Array | null,
+  outPath: string,
+): void {
+  writeFileAtomic(outPath, reportHtmlPieces(loadReportAssets(), data, curvesJson));
 }
 
 // ---------------------------------------------------------------------------------------------------

@@ -131,35 +131,55 @@ function summaryOf(data: ReportData): ReportData {
   return { ...data, samples };
 }
 
-/** The whole report page. */
-export function assembleReportHtml(assets: ReportAssets, data: ReportData): string {
-  const parts: string[] = [];
-  parts.push(
-    '<!doctype html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n',
-    `<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">\n`,
-    '<meta name="viewport" content="width=device-width, initial-scale=1">\n',
-    `<meta name="generator" content="lumirate ${escapeHtml(data.lumirateVersion)}">\n`,
-    `<title>${escapeHtml(data.title)}</title>\n`,
-    `<style>${inlineStyle(assets.uplotCss, 'the uPlot stylesheet')}</style>\n`,
-    `<style>${inlineStyle(assets.appCss, 'the page stylesheet')}</style>\n`,
-    '</head>\n<body>\n',
-    '<noscript><p>This report draws its tables and plots with JavaScript; please allow scripts for this local file.</p></noscript>\n',
-    '<div id="lumirate-app"></div>\n',
-    `<script type="application/json" id="${REPORT_DATA_ID}">${jsonForScript(summaryOf(data))}</script>\n`,
+/** A sample's curves as the JSON text of its block in the page: packed, rounded and script-safe. */
+export function curvesForScript(curves: FitCurves): string {
+  return jsonForScript(packCurves(curves));
+}
+
+/**
+ * The report page in pieces, in order, for writing to a file one piece at a time. `data.samples` are
+ * read for the summary only (their curves, if any, are ignored); `curvesJson(i)` gives sample i's curves
+ * block text as `curvesForScript` makes it (as text or UTF-8 bytes), or null when it has none, and is
+ * called once per sample, in order, so a caller can read them from disk as they are needed.
+ */
+export function* reportHtmlPieces(
+  assets: ReportAssets,
+  data: ReportData,
+  curvesJson: (i: number) => string | Uint8Array | null,
+): Generator<string | Uint8Array> {
+  yield (
+    '<!doctype html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n' +
+    `<meta http-equiv="Content-Security-Policy" content="${REPORT_CSP}">\n` +
+    '<meta name="viewport" content="width=device-width, initial-scale=1">\n' +
+    `<meta name="generator" content="lumirate ${escapeHtml(data.lumirateVersion)}">\n` +
+    `<title>${escapeHtml(data.title)}</title>\n` +
+    `<style>${inlineStyle(assets.uplotCss, 'the uPlot stylesheet')}</style>\n` +
+    `<style>${inlineStyle(assets.appCss, 'the page stylesheet')}</style>\n` +
+    '</head>\n<body>\n' +
+    '<noscript><p>This report draws its tables and plots with JavaScript; please allow scripts for this local file.</p></noscript>\n' +
+    '<div id="lumirate-app"></div>\n'
   );
-  const curveBlock = (i: number) => {
-    const curves = data.samples[i].fit?.curves;
-    return curves
-      ? `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">${jsonForScript(packCurves(curves))}</script>\n`
-      : '';
-  };
+  yield `<script type="application/json" id="${REPORT_DATA_ID}">${jsonForScript(summaryOf(data))}</script>\n`;
+  function* curveBlock(i: number): Generator<string | Uint8Array> {
+    const json = curvesJson(i);
+    if (json === null) return;
+    yield `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">`;
+    yield json;
+    yield '</script>\n';
+  }
   // The page opens on the first sample: its curves are there before the page script runs.
-  if (data.samples.length) parts.push(curveBlock(0));
-  parts.push(
-    `<script>${inlineScript(assets.uplotJs)}</script>\n`,
-    `<script>${inlineScript(assets.appJs)}</script>\n`,
-  );
-  for (let i = 1; i < data.samples.length; i++) parts.push(curveBlock(i));
-  parts.push('</body>\n</html>\n');
-  return parts.join('');
+  if (data.samples.length) yield* curveBlock(0);
+  yield `<script>${inlineScript(assets.uplotJs)}</script>\n`;
+  yield `<script>${inlineScript(assets.appJs)}</script>\n`;
+  for (let i = 1; i < data.samples.length; i++) yield* curveBlock(i);
+  yield '</body>\n</html>\n';
+}
+
+/** The whole report page as one string (for small reports and tests; a batch streams the pieces). */
+export function assembleReportHtml(assets: ReportAssets, data: ReportData): string {
+  const curvesJson = (i: number) => {
+    const curves = data.samples[i].fit?.curves;
+    return curves ? curvesForScript(curves) : null;
+  };
+  return [...reportHtmlPieces(assets, data, curvesJson)].join('');
 }

@@ -22,6 +22,10 @@ export class Journal {
   private offset: number;
   private lastSync = Date.now();
 
+  /**
+   * `syncEveryMs` (default 200) bounds the time between flushes to the disk; Infinity never flushes,
+   * for a scratch file that only has to outlive the process's own writes.
+   */
   constructor(
     readonly path: string,
     options: { append: boolean; syncEveryMs?: number },
@@ -35,10 +39,18 @@ export class Journal {
 
   /** Appends one JSON text (no newline inside) and returns where it sits, for reading it back. */
   append(json: string): { offset: number; length: number } {
-    const bytes = Buffer.from(json + '\n', 'utf8');
-    writeSync(this.fd, bytes);
-    const at = { offset: this.offset, length: bytes.length - 1 };
-    this.offset += bytes.length;
+    return this.appendLine(Buffer.from(json + '\n', 'utf8'));
+  }
+
+  /**
+   * Appends one line already encoded as UTF-8 and ending in a newline (a worker encodes its result, so
+   * the main thread only copies bytes); returns where the line sits, without its newline.
+   */
+  appendLine(line: Uint8Array): { offset: number; length: number } {
+    if (line[line.length - 1] !== 10) throw new Error('a journal line must end in a newline');
+    writeSync(this.fd, line);
+    const at = { offset: this.offset, length: line.length - 1 };
+    this.offset += line.length;
     const now = Date.now();
     if (now - this.lastSync >= this.syncEveryMs) {
       fsyncSync(this.fd);
@@ -67,7 +79,7 @@ export class Journal {
 
   close(): void {
     if (this.fd !== -1) {
-      fsyncSync(this.fd);
+      if (Number.isFinite(this.syncEveryMs)) fsyncSync(this.fd);
       closeSync(this.fd);
       this.fd = -1;
     }

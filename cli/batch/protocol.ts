@@ -24,10 +24,16 @@ export interface WorkTask {
   members: MemberTask[];
 }
 
-/** What comes back for each member: the full result as JSON text and a copy without curves. */
+/**
+ * What comes back for each member: the full result as a line of JSON in UTF-8 (ending in a newline,
+ * ready for the journal), a copy without curves and, when a report is wanted, the sample's curves
+ * block for it (`curvesForScript`, also as a UTF-8 line). The bytes are transferred, not copied, and
+ * the main thread neither encodes nor parses them.
+ */
 export interface MemberReply {
-  json: string;
+  json: Uint8Array;
   brief: SampleResult;
+  reportCurves?: Uint8Array;
 }
 
 export interface WorkReply {
@@ -39,6 +45,8 @@ export interface WorkerSetup {
   lumirateVersion: string;
   /** Leave the plotting curves out of results.json (smaller files for very large batches). */
   curves: boolean;
+  /** Make each sample's curves block for report.html (in the worker, in parallel). */
+  report?: boolean;
 }
 
 /** A result without its plotting curves: what the main thread keeps in memory for tables and series. */

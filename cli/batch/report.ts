@@ -1,23 +1,28 @@
 import { join } from 'node:path';
-import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shared/schema.js';
-import { writeReport } from '../report.js';
+import { SCHEMA_VERSION, type SeriesResult } from '../../shared/schema.js';
+import { writeReportStreamed } from '../report.js';
 import { packageVersion } from '../version.js';
+import { reportCurvesOf, type OutputEntry } from './writeOutputs.js';
 
-/** A writer of DIR/report.html from a finished batch's samples (loaded only when needed) and series. */
+/**
+ * A writer of DIR/report.html from a finished batch's entries (in report order) and series: the
+ * summary from the brief results in memory, each sample's curves block read as it is written.
+ */
 export function reportWriter(
   dir: string,
   title: string,
-): (samples: () => SampleResult[], series: SeriesResult[]) => void {
-  return (samples, series) =>
-    writeReport(
+): (entries: OutputEntry[], series: SeriesResult[]) => void {
+  return (entries, series) =>
+    writeReportStreamed(
       {
         schemaVersion: SCHEMA_VERSION,
         title,
         createdUtc: new Date().toISOString(),
         lumirateVersion: packageVersion(),
-        samples: samples(),
+        samples: entries.map((e) => e.brief),
         series,
       },
+      (i) => reportCurvesOf(entries[i]),
       join(dir, 'report.html'),
     );
 }

@@ -237,9 +237,19 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   const nToRun = toRun.length;
 
   const journal = new Journal(join(outDir, JOURNAL_NAME), { append: options.resume === true });
+  // The report's curves blocks wait on disk, not in memory, until report.html is written; the file is
+  // scratch (named like a temporary, so a killed run's copy is cleared by the next run).
+  const wantReport = options.report !== false;
+  const curvesSpool = wantReport
+    ? new Journal(join(outDir, `.report-curves.tmp-${process.pid}`), { append: false, syncEveryMs: Infinity })
+    : null;
   const progress = ProgressBar.for(nToRun, options.quiet === true);
   const jobs = Math.max(1, options.jobs ?? availableParallelism());
-  const setup: WorkerSetup = { lumirateVersion: version, curves: options.curves !== false };
+  const setup: WorkerSetup = {
+    lumirateVersion: version,
+    curves: options.curves !== false,
+    report: wantReport && options.curves !== false,
+  };
   const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
   let done = 0;
   let failedNow = 0;
@@ -249,16 +259,21 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     pool.stop();
   });
   try {
-    const record = (json: string, brief: SampleResult) => {
-      const at = journal.append(json);
-      entries.push({ brief, json: () => journal.read(at), bytes: () => journal.readBytes(at) });
+    const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
+      const at = typeof json === 'string' ? journal.append(json) : journal.appendLine(json);
+      const entry: OutputEntry = { brief, json: () => journal.read(at), bytes: () => journal.readBytes(at) };
+      if (reportCurves && curvesSpool) {
+        const c = curvesSpool.appendLine(reportCurves);
+        entry.reportCurves = () => curvesSpool.readBytes(c);
+      }
+      entries.push(entry);
       done++;
       if (brief.status === 'failed') failedNow++;
     };
     await pool.run(
       tasks,
       (reply) => {
-        for (const r of reply.results) record(r.json, r.brief);
+        for (const r of reply.results) record(r.json, r.brief, r.reportCurves);
         progress.update(done, failedNow);
       },
       // A sample that takes its worker down (out of memory …) fails alone; the batch goes on.
@@ -291,10 +306,14 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     }
   }
   const title = `lumirate batch: ${manifestPath.split(/[\\/]/).pop()}${options.shard ? ` (share ${options.shard.index}/${options.shard.count})` : ''}`;
-  writeBatchOutputs(outDir, entries, series, {
-    title,
-    writeReport: options.report === false ? undefined : reportWriter(outDir, title),
-  });
+  try {
+    writeBatchOutputs(outDir, entries, series, {
+      title,
+      writeReport: wantReport ? reportWriter(outDir, title) : undefined,
+    });
+  } finally {
+    curvesSpool?.remove();
+  }
   // The journal is only needed to finish an interrupted batch; a complete one lives in results.json.
   if (interrupted) journal.close();
   else journal.remove();

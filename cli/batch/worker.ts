@@ -1,10 +1,12 @@
 /**
  * Worker thread of `lumirate batch`: reads a sample's files, hashes them, runs the fit and the physics,
- * and sends back the result as JSON text (serialised here, in parallel, rather than on the main thread).
+ * and sends back the result as UTF-8 JSON (serialised and encoded here, in parallel, rather than on the
+ * main thread), with the sample's curves block for the report when one is written.
  * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
  */
 import { readFileSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
+import { curvesForScript } from '../../shared/reportHtml.js';
 import type { SampleResult } from '../../shared/schema.js';
 import { sha256Hex } from '../../src/batch/hash.js';
 import {
@@ -103,11 +105,30 @@ function runTask(task: WorkTask): SampleResult[] {
   return task.members.map((m) => out.get(m.settings.sample)!);
 }
 
+const utf8 = new TextEncoder();
+
+/** The report's curves block of a result, when it has curves as plain arrays (as the fitter makes them). */
+function reportCurves(r: SampleResult): Uint8Array | undefined {
+  const c = r.fit?.curves;
+  if (!setup.report || !c) return undefined;
+  const arrays = [c.timeNs, c.data, c.model, c.irf, c.weightedResiduals, c.autocorrelation];
+  // Anything else (a typed array) is left to the main thread, which packs it from the JSON text.
+  if (!arrays.every(Array.isArray)) return undefined;
+  return utf8.encode(curvesForScript(c) + '\n');
+}
+
 parentPort!.on('message', (task: WorkTask) => {
   const results = runTask(task).map(withoutCurves);
+  const transfer: ArrayBuffer[] = [];
   const reply: WorkReply = {
     id: task.id,
-    results: results.map((r) => ({ json: JSON.stringify(r), brief: briefOf(r) })),
+    results: results.map((r) => {
+      const json = utf8.encode(JSON.stringify(r) + '\n');
+      const curves = reportCurves(r);
+      transfer.push(json.buffer as ArrayBuffer);
+      if (curves) transfer.push(curves.buffer as ArrayBuffer);
+      return { json, brief: briefOf(r), ...(curves ? { reportCurves: curves } : {}) };
+    }),
   };
-  parentPort!.postMessage(reply);
+  parentPort!.postMessage(reply, transfer);
 });

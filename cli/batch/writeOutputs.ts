@@ -1,5 +1,6 @@
 import { readdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
+import { curvesForScript } from '../../shared/reportHtml.js';
 import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shared/schema.js';
 import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
@@ -21,6 +22,8 @@ export interface OutputEntry {
   json: () => string;
   /** The same JSON as UTF-8 bytes, when they can be had without encoding (straight from the journal). */
   bytes?: () => Uint8Array;
+  /** Its curves block for report.html, when its worker made one (see `reportCurvesOf`). */
+  reportCurves?: () => Uint8Array;
 }
 
 /** Removes temporary files left by a killed run (their writer is gone; the real files are intact). */
@@ -46,7 +49,7 @@ export function writeBatchOutputs(
   dir: string,
   entries: OutputEntry[],
   series: SeriesResult[],
-  options: { title: string; writeReport?: (samples: () => SampleResult[], series: SeriesResult[]) => void },
+  options: { title: string; writeReport?: (entries: OutputEntry[], series: SeriesResult[]) => void },
 ): void {
   const ordered = entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief));
   const briefs = ordered.map((e) => e.brief);
@@ -60,7 +63,7 @@ export function writeBatchOutputs(
       JSON.stringify({ schemaVersion: SCHEMA_VERSION, series }, null, 2) + '\n',
     );
   else rmSync(join(dir, 'series.json'), { force: true });
-  options.writeReport?.(() => lazySamples(ordered), series);
+  options.writeReport?.(ordered, series);
 }
 
 function* resultsJsonChunks(entries: OutputEntry[]): Generator<string | Uint8Array> {
@@ -74,14 +77,13 @@ function* resultsJsonChunks(entries: OutputEntry[]): Generator<string | Uint8Arr
 }
 
 /**
- * The samples as an array whose elements are parsed from their JSON text each time they are read and
- * then dropped: the report reads each sample's curves once, so a batch of thousands never has all its
- * curves in memory at the same time.
+ * A sample's curves block for report.html: the one its worker made, else packed from its JSON text
+ * (a result reused by --resume or merged from shards), which is parsed for that and then dropped, so a
+ * batch of thousands never has all its curves in memory at the same time.
  */
-export function lazySamples(entries: OutputEntry[]): SampleResult[] {
-  const out: SampleResult[] = new Array(entries.length);
-  entries.forEach((e, k) => {
-    Object.defineProperty(out, k, { enumerable: true, get: () => JSON.parse(e.json()) as SampleResult });
-  });
-  return out;
+export function reportCurvesOf(e: OutputEntry): string | Uint8Array | null {
+  if (e.reportCurves) return e.reportCurves();
+  if (!e.brief.fit) return null;
+  const curves = (JSON.parse(e.json()) as SampleResult).fit?.curves;
+  return curves ? curvesForScript(curves) : null;
 }

@@ -12,7 +12,8 @@ import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal, readJournal } from '../../cli/batch/journal.js';
-import { lazySamples, removeStaleTemporaries } from '../../cli/batch/writeOutputs.js';
+import { curvesForScript } from '../../shared/reportHtml.js';
+import { removeStaleTemporaries, reportCurvesOf } from '../../cli/batch/writeOutputs.js';
 
 const dirs: string[] = [];
 function tempDir(): string {
@@ -34,6 +35,18 @@ describe('journal', () => {
     expect(JSON.parse(j.read(a))).toEqual({ sample: 'a', x: 'é' });
     j.close();
     expect([...readJournal(path)].map((l) => l.value)).toEqual([{ sample: 'a', x: 'é' }, { sample: 'b' }]);
+  });
+
+  it('takes lines already encoded, reads them back byte for byte, and refuses one without its newline', () => {
+    const path = join(tempDir(), 'j.ndjson');
+    const j = new Journal(path, { append: false, syncEveryMs: Infinity });
+    const a = j.append('{"sample":"a"}');
+    const b = j.appendLine(new TextEncoder().encode('{"sample":"b","x":"µ"}\n'));
+    expect(b).toEqual({ offset: a.length + 1, length: 23 });
+    expect(j.read(b)).toBe('{"sample":"b","x":"µ"}');
+    expect(() => j.appendLine(new TextEncoder().encode('{"sample":"c"}'))).toThrow(/newline/);
+    j.close();
+    expect([...readJournal(path)].map((l) => (l.value as { sample: string }).sample)).toEqual(['a', 'b']);
   });
 
   it('ignores a torn last line, as a kill during a write leaves it', () => {
@@ -83,20 +96,39 @@ describe('writeFileAtomic', () => {
   });
 });
 
-describe('lazySamples', () => {
-  it('parses each sample when it is read and keeps nothing parsed', () => {
+describe('reportCurvesOf', () => {
+  const curves = {
+    timeNs: [0, 0.5, 1],
+    data: [3, 10, 4],
+    model: [null, 9.87654, 4.01],
+    irf: [1, 0, 0],
+    weightedResiduals: [null, 0.041, -0.005],
+    autocorrelation: [1, -0.25],
+    fitStartIndex: 1,
+    fitEndIndex: 3,
+  };
+  it('packs the curves from the JSON text as the whole-page writer does, parsing only when asked', () => {
     let reads = 0;
-    const entries = ['a', 'b'].map((id) => ({
-      brief: null as never,
+    const full = { sample: 'a', fit: { curves } };
+    const entry = {
+      brief: { sample: 'a', fit: {} } as never,
       json: () => {
         reads++;
-        return JSON.stringify({ sample: id });
+        return JSON.stringify(full);
       },
-    }));
-    const samples = lazySamples(entries);
+    };
     expect(reads).toBe(0);
-    expect(samples.map((s) => s.sample)).toEqual(['a', 'b']);
-    expect(samples[0]).not.toBe(samples[0]);
-    expect(reads).toBe(4);
+    expect(reportCurvesOf(entry)).toBe(curvesForScript(curves as never));
+    expect(reads).toBe(1);
+  });
+  it('uses the block a worker made, and gives none for a sample without a fit', () => {
+    const block = new TextEncoder().encode('{"x":1}');
+    const json = () => {
+      throw new Error('must not be read');
+    };
+    expect(
+      reportCurvesOf({ brief: { sample: 'a', fit: {} } as never, json, reportCurves: () => block }),
+    ).toBe(block);
+    expect(reportCurvesOf({ brief: { sample: 'b' } as never, json })).toBeNull();
   });
 });
