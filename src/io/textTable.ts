@@ -114,17 +114,78 @@ export function parseCellNumber(
   return v;
 }
 
+/** Exact powers of ten: every 10^k with k ≤ 22 is a double, so one multiply or divide rounds correctly. */
+const EXACT_POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
+
+/**
+ * The value of a plain decimal cell, scanned character by character: optional sign, digits with at
+ * most one decimal mark (`mark` is its char code), an optional exponent; no spaces. Only when the
+ * digits form an integer below 2⁵³ and the decimal exponent is within ±22 is the result computed
+ * here, by one exact-operand multiply or divide, which IEEE arithmetic rounds correctly, so it is the
+ * same double that `Number` gives (Clinger's fast path). Anything else returns NaN and takes the
+ * general path, which also names a bad cell.
+ */
+function scanPlainNumber(cell: string, mark: number): number {
+  const n = cell.length;
+  let i = 0;
+  let negative = false;
+  let c = cell.charCodeAt(0);
+  if (c === 45 || c === 43) {
+    negative = c === 45;
+    i = 1;
+  }
+  let mantissa = 0;
+  let digits = 0;
+  let scale = 0;
+  let seenMark = false;
+  for (; i < n; i++) {
+    c = cell.charCodeAt(i);
+    if (c >= 48 && c <= 57) {
+      mantissa = mantissa * 10 + (c - 48);
+      digits++;
+      if (seenMark) scale--;
+    } else if (c === mark && !seenMark) seenMark = true;
+    else break;
+  }
+  if (digits === 0 || digits > 15) return NaN;
+  if (i < n) {
+    if (c !== 101 && c !== 69) return NaN;
+    i++;
+    let expNegative = false;
+    c = cell.charCodeAt(i);
+    if (c === 45 || c === 43) {
+      expNegative = c === 45;
+      i++;
+    }
+    if (i === n) return NaN;
+    let exp = 0;
+    for (; i < n; i++) {
+      c = cell.charCodeAt(i);
+      if (c < 48 || c > 57 || exp > 1000) return NaN;
+      exp = exp * 10 + (c - 48);
+    }
+    scale += expNegative ? -exp : exp;
+  }
+  if (scale < -22 || scale > 22) return NaN;
+  const v = scale < 0 ? mantissa / EXACT_POW10[-scale] : mantissa * EXACT_POW10[scale];
+  return negative ? -v : v;
+}
+
 /**
  * Parses a whole column as finite numbers, naming the first cell that is not one. The common cell
- * (already trimmed, well formed) takes a fast path that builds no location object.
+ * (already trimmed, plain decimal) is scanned by hand with no regular expression or new string; the
+ * rest go through the general rules.
  */
 export function parseColumnNumbers(table: TextTable, index: number, what = 'a number'): Float64Array {
   const { rows, decimalMark, source } = table;
   const re = decimalMark === '.' ? NUMBER : NUMBER_COMMA;
+  const mark = decimalMark.charCodeAt(0);
   const out = new Float64Array(rows.length);
   for (let i = 0; i < rows.length; i++) {
     const cell = rows[i].cells[index];
-    const v = re.test(cell) ? Number(decimalMark === ',' ? cell.replace(',', '.') : cell) : NaN;
+    let v = scanPlainNumber(cell, mark);
+    if (Number.isNaN(v))
+      v = re.test(cell) ? Number(decimalMark === ',' ? cell.replace(',', '.') : cell) : NaN;
     out[i] = Number.isFinite(v)
       ? v
       : parseCellNumber(cell, decimalMark, { file: source, line: rows[i].line, column: index + 1 }, what);
