@@ -216,6 +216,9 @@ function runFit(setup: FitSetup): FitRun {
       ftol: 1e-10,
       atol: 1e-5,
       xtol: 1e-9,
+      // The grid starts lie close to the optimum: a lighter first damping than the optimiser's
+      // default saves one iteration on typical 2-exponential decays and reaches the same minimum.
+      lambda0: 1e-2,
       // The first start's arrays come from a workspace kept between fits (they are the largest
       // allocations of a fit); later starts get their own, so that the best result so far stays intact.
       workspace: k === 0 ? workspaceFor(F, nFit) : undefined,
