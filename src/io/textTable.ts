@@ -351,11 +351,29 @@ function splitLines(content: ContentLines, delimiter: Delimiter, source: string)
   if (delimiter === 'single column') return content.text.map((t) => [t.trim()]);
   if (delimiter === 'whitespace') return content.text.map((t) => t.trim().split(/\s+/));
   const sep = PAPA_DELIMITER[delimiter];
-  // Lines without a quote split natively (the bulk of any numeric table, and several times faster);
-  // papaparse handles quoted fields. One row per line keeps line numbers exact.
+  // Lines without a quote are cut at each separator (the bulk of any numeric table, and several times
+  // faster); papaparse handles quoted fields. One row per line keeps line numbers exact.
   return content.text.map((t, i) =>
-    t.includes('"') ? splitQuoted(t, content.line[i], sep, source) : t.split(sep),
+    t.includes('"') ? splitQuoted(t, content.line[i], sep, source) : splitAt(t, sep),
   );
+}
+
+/**
+ * `text.split(sep)` for a one-character separator, by `indexOf` and `slice`: the same fields (an
+ * empty text gives one empty field), about twice as fast on the short lines of a numeric table.
+ */
+export function splitAt(text: string, sep: string): string[] {
+  const out: string[] = [];
+  let start = 0;
+  for (;;) {
+    const k = text.indexOf(sep, start);
+    if (k < 0) {
+      out.push(text.slice(start));
+      return out;
+    }
+    out.push(text.slice(start, k));
+    start = k + 1;
+  }
 }
 
 function splitQuoted(text: string, line: number, sep: string, source: string): string[] {

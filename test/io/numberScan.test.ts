@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { parseColumnNumbers, readTextTable } from '../../src/io/textTable.js';
+import { parseColumnNumbers, readTextTable, splitAt } from '../../src/io/textTable.js';
+import { kthSmallest } from '../../src/io/parseHistogram.js';
 import { expectInputError } from './expectInputError.js';
 
 /**
@@ -53,5 +54,39 @@ describe('parsing a numeric column', () => {
       column: 2,
       match: /'1e' is not a count/,
     });
+  });
+});
+
+describe('cutting a line at its separator', () => {
+  it('gives the fields String.prototype.split gives, empty ones included', () => {
+    // Reference: the ECMAScript String.prototype.split of the engine.
+    fc.assert(
+      fc.property(
+        fc.string({ unit: fc.constantFrom('a', '1', ',', ';', '\t', ' ', '.') }),
+        fc.constantFrom(',', ';', '\t'),
+        (text, sep) => {
+          expect(splitAt(text, sep)).toEqual(text.split(sep));
+        },
+      ),
+      { numRuns: 500 },
+    );
+  });
+});
+
+describe('the median step of a time axis', () => {
+  it('is the value a full numeric sort puts at that rank', () => {
+    // Reference: TypedArray.prototype.sort of the engine (numeric order).
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ min: 1e-300, max: 1, noNaN: true }), { minLength: 1, maxLength: 300 }),
+        fc.nat(),
+        (xs, r) => {
+          const k = r % xs.length;
+          const sorted = Float64Array.from(xs).sort();
+          expect(kthSmallest(Float64Array.from(xs), k)).toBe(sorted[k]);
+        },
+      ),
+      { numRuns: 500 },
+    );
   });
 });
