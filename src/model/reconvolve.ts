@@ -334,17 +334,23 @@ export function exponentialBasis(
   let S = 0;
   let dS = 0;
   let sS = 0;
-  // Central-difference slopes, carried along: qPrev, q, qNext.
-  let qPrev = 0;
-  let q = n > 0 ? irf[0] : 0;
-  let gPrev = 0;
-  let gq = wantShift && n > 0 ? (dIrf as Float64Array)[0] : 0;
   // Past the last non-zero channel of the IRF (and of ∂irf/∂shift) every q, d and g is 0: the
   // recursion is a pure exponential, run below with the same arithmetic minus the zero terms (so
   // the values are identical). A measured IRF usually ends a few hundred channels into the axis.
+  // Before its first non-zero channel everything is 0.
   let end = n;
   while (end > 0 && irf[end - 1] === 0 && (!wantShift || (dIrf as Float64Array)[end - 1] === 0)) end--;
-  for (let i = 0; i < end; i++) {
+  let start = 0;
+  while (start < end && irf[start] === 0 && (!wantShift || (dIrf as Float64Array)[start] === 0)) start++;
+  out.fill(0, 0, start);
+  if (dLnTau) dLnTau.fill(0, 0, start);
+  if (wantShift) (dShift as Float64Array).fill(0, 0, start);
+  // Central-difference slopes, carried along: qPrev, q, qNext.
+  let qPrev = 0;
+  let q = start < n ? irf[start] : 0;
+  let gPrev = 0;
+  let gq = wantShift && start < n ? (dIrf as Float64Array)[start] : 0;
+  for (let i = start; i < end; i++) {
     const qNext = i + 1 < n ? irf[i + 1] : 0;
     let d = 0.5 * (qNext - qPrev);
     // Limit the slope so that the line stays ≥ 0 across the channel (|d| ≤ 2q): a steep edge on
