@@ -11,13 +11,16 @@
  * IRF file is shared by every row, as in a real session.
  *
  * Peak memory: the CLI runs its workers as threads of one process, so the process's VmHWM (peak
- * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all.
+ * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all. CPU time is
+ * read from /proc/<pid>/stat by the same poll (so it misses at most the last 10 ms), and each run
+ * prints the machine's load average at its start: on a shared machine a 1 → 2 worker speed-up in wall
+ * time needs two idle cores.
  *
  * `BENCH_BATCH_N` changes the number of decays (default 1000).
  */
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { sha256Hex } from '../../src/batch/hash.js';
 import { fitDecay } from '../../src/fit/fitDecay.js';
@@ -28,6 +31,7 @@ import { createRng } from '../../src/sim/rng.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
 
 const N = Number(process.env.BENCH_BATCH_N ?? 1000);
+const cores = availableParallelism();
 const root = join(import.meta.dirname, '..', '..');
 const cli = join(root, 'dist', 'cli', 'main.js');
 if (!existsSync(cli)) {
@@ -115,10 +119,19 @@ try {
 
   interface Run {
     wallS: number;
+    /** CPU time of the whole process, all threads, user + system. */
+    cpuS: number;
     peakMb: number;
     code: number | null;
     ok: number;
+    /** The machine's 1-minute load average when the run started: other work competes for the cores. */
+    load: number;
   }
+  // utime and stime, fields 14 and 15 of /proc/<pid>/stat, counted in clock ticks (100 per second on Linux).
+  const cpuTicks = (stat: string) => {
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return Number(f[11]) + Number(f[12]);
+  };
   const runOnce = (jobs: number, extra: string[]): Promise<Run> =>
     new Promise((resolve) => {
       const out = join(dir, `out-${jobs}-${extra.join('')}`);
@@ -133,10 +146,13 @@ try {
       let stderr = '';
       child.stderr.on('data', (d) => (stderr += d));
       let peakKb = 0;
+      let ticks = 0;
+      const load = loadavg()[0];
       const poll = setInterval(() => {
         try {
           const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${child.pid}/status`, 'utf8'));
           if (m) peakKb = Math.max(peakKb, Number(m[1]));
+          ticks = Math.max(ticks, cpuTicks(readFileSync(`/proc/${child.pid}/stat`, 'utf8')));
         } catch {
           // the process has just ended
         }
@@ -147,7 +163,7 @@ try {
         const m = /batch: (\d+) ok/.exec(stderr);
         if (code !== 0) process.stderr.write(stderr.split('\n').slice(0, 5).join('\n') + '\n');
         rmSync(out, { recursive: true, force: true });
-        resolve({ wallS, peakMb: peakKb / 1024, code, ok: m ? Number(m[1]) : 0 });
+        resolve({ wallS, cpuS: ticks / 100, peakMb: peakKb / 1024, code, ok: m ? Number(m[1]) : 0, load });
       });
     });
 
@@ -162,11 +178,16 @@ try {
       const r = await runOnce(jobs, v.extra);
       results[jobs] = r;
       console.log(
-        `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall, ${(N / r.wallS).toFixed(0)} decays/s, peak RSS ${r.peakMb.toFixed(0)} MB, ${r.ok}/${N} ok, exit ${r.code}`,
+        `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall, ${(N / r.wallS).toFixed(0)} decays/s, ${r.cpuS.toFixed(1)} s CPU (≥), peak RSS ${r.peakMb.toFixed(0)} MB, ${r.ok}/${N} ok, exit ${r.code}, load ${r.load.toFixed(1)}`,
       );
     }
     console.log(
       `  speed-up 1 → 2 workers: ${(results[1].wallS / results[2].wallS).toFixed(2)}×   (goal: ≤ 3 s and ≤ 300 MB with 2)`,
+    );
+    // With other work on the machine the wall-clock speed-up says little; the CPU time says whether
+    // the second worker added work of its own (messaging, a second heap) or only ran alongside.
+    console.log(
+      `  CPU time 1 → 2 workers: ${results[1].cpuS.toFixed(1)} s → ${results[2].cpuS.toFixed(1)} s; a load above ${cores} leaves less than 2 cores to this run`,
     );
   }
 } finally {
