@@ -119,6 +119,26 @@ describe('residualAutocorrelation', () => {
     expect(c[2]).toBeCloseTo(0.36, 1);
   });
 
+  it('equals the definition, one plain pass per lag, bit for bit at every length and lag count', () => {
+    const direct = (r: number[], lagMax: number): number[] => {
+      const n = r.length;
+      const meanSq = r.reduce((a, v) => a + v * v, 0) / n;
+      return Array.from({ length: lagMax + 1 }, (_, j) => {
+        if (j >= n || !(meanSq > 0)) return NaN;
+        let s = 0;
+        for (let i = 0; i + j < n; i++) s += r[i] * r[i + j];
+        return s / (n - j) / meanSq;
+      });
+    };
+    const next = normalSource(13);
+    for (const n of [1, 2, 3, 4, 5, 7, 8, 9, 31, 64, 257]) {
+      const r = Array.from({ length: n }, next);
+      for (const lagMax of [0, 1, 2, 3, 4, 5, 6, 7, n - 1, n, n + 3]) {
+        expect(Array.from(residualAutocorrelation(r, lagMax))).toEqual(direct(r, lagMax));
+      }
+    }
+  });
+
   it('defaults to floor(N/2) lags and gives NaN where a lag cannot be formed', () => {
     expect(residualAutocorrelation(new Float64Array(9).fill(1)).length).toBe(5);
     const c = residualAutocorrelation([1, -1], 4);
