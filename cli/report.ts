@@ -31,7 +31,6 @@ import {
   type SeriesResult,
 } from '../shared/schema.js';
 import { InputError } from '../src/errors.js';
-import { firstJsonError } from '../src/batch/jsonPositions.js';
 import { writeFileAtomic } from './batch/atomicWrite.js';
 import { packageVersion } from './version.js';
 
@@ -127,31 +126,7 @@ export function writeReportStreamed(
 }
 
 // ---------------------------------------------------------------------------------------------------
-// Reading results files for `lumirate view`.
-
-/** 1-based line and column of a character offset. */
-function lineColumn(text: string, offset: number): { line: number; column: number } {
-  let line = 1;
-  let lineStart = 0;
-  for (let i = 0; i < offset && i < text.length; i++) {
-    if (text.charCodeAt(i) === 10) {
-      line++;
-      lineStart = i + 1;
-    }
-  }
-  return { line, column: offset - lineStart + 1 };
-}
-
-/** Parses JSON text, or throws an InputError naming the file, line and column of the fault. */
-export function parseJsonFile(text: string, file: string): unknown {
-  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
-  try {
-    return JSON.parse(body);
-  } catch {
-    const fault = firstJsonError(body) ?? { offset: 0, reason: 'not valid JSON' };
-    throw new InputError(`not valid JSON: ${fault.reason}`, { file, ...lineColumn(body, fault.offset) });
-  }
-}
+// Reading results files for `lumirate view` (the JSON itself is parsed by parseJsonText).
 
 function checkSamples(items: unknown[], file: string): SampleResult[] {
   items.forEach((item, k) => {

@@ -10,6 +10,7 @@ import {
 import { InputError } from '../../src/errors.js';
 import { computeRates, ratesFromFit } from '../../src/physics/rates.js';
 import { readTextFile } from '../readInput.js';
+import { parseJsonText } from '../../src/batch/jsonPositions.js';
 import { action } from '../run.js';
 
 const NUMBER = /^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$/;
@@ -48,100 +49,6 @@ export function rangeOption(text: string | undefined, flag: string): [number, nu
     throw new InputError(`${flag} '${text}' must be LOW:HIGH with HIGH > LOW, for example 16000:21500`);
   }
   return [Number(m[1]), Number(m[2])];
-}
-
-/**
- * Offset of the first JSON syntax error in `text`, or −1. The engine's own message does not always say
- * where; this small recursive-descent scan (RFC 8259 grammar, no values built) does.
- */
-export function jsonErrorOffset(text: string): number {
-  let i = 0;
-  const fail = (): never => {
-    throw i;
-  };
-  const ws = () => {
-    while (i < text.length && (text[i] === ' ' || text[i] === '\t' || text[i] === '\n' || text[i] === '\r'))
-      i++;
-  };
-  const str = () => {
-    i++;
-    while (i < text.length) {
-      const c = text[i];
-      if (c === '\\') {
-        i += 2;
-        continue;
-      }
-      if (c === '"') {
-        i++;
-        return;
-      }
-      if (c < ' ') fail();
-      i++;
-    }
-    fail();
-  };
-  const value = (): void => {
-    ws();
-    const ch = text[i];
-    if (ch === '{' || ch === '[') {
-      const close = ch === '{' ? '}' : ']';
-      i++;
-      ws();
-      if (text[i] === close) {
-        i++;
-        return;
-      }
-      for (;;) {
-        if (ch === '{') {
-          ws();
-          if (text[i] !== '"') fail();
-          str();
-          ws();
-          if (text[i] !== ':') fail();
-          i++;
-        }
-        value();
-        ws();
-        if (text[i] === ',') {
-          i++;
-          continue;
-        }
-        if (text[i] === close) {
-          i++;
-          return;
-        }
-        fail();
-      }
-    }
-    if (ch === '"') return str();
-    const m = /^(-?(0|[1-9]\d*)(\.\d+)?([eE][+-]?\d+)?|true|false|null)/.exec(text.slice(i, i + 400));
-    if (!m) fail();
-    else i += m[0].length;
-  };
-  try {
-    value();
-    ws();
-    if (i < text.length) fail();
-    return -1;
-  } catch (pos) {
-    return typeof pos === 'number' ? pos : -1;
-  }
-}
-
-/** Parses JSON text; a syntax error becomes an InputError with the line and column where it sits. */
-export function parseJsonText(text: string, file: string): unknown {
-  try {
-    return JSON.parse(text);
-  } catch (err) {
-    const message = (err instanceof Error ? err.message : String(err)).replace(/\s+/g, ' ');
-    const pos = jsonErrorOffset(text);
-    if (pos < 0) throw new InputError(`not valid JSON (${message})`, { file });
-    const before = text.slice(0, pos);
-    const line = before.split('\n').length;
-    const column = pos - before.lastIndexOf('\n');
-    const found = pos < text.length ? `unexpected '${text[pos]}'` : 'unexpected end of the file';
-    throw new InputError(`not valid JSON: ${found}`, { file, line, column });
-  }
 }
 
 /** The fit in a FitResult file, a sample result, or a batch results.json (an array of sample results). */

@@ -4,7 +4,8 @@ import { existsSync, statSync } from 'node:fs';
 import { InputError } from '../../src/errors.js';
 import { action } from '../run.js';
 import { readTextFile } from '../readInput.js';
-import { parseJsonFile, reportDataFromJson, samePath, seriesFromJson, writeReport } from '../report.js';
+import { parseJsonText } from '../../src/batch/jsonPositions.js';
+import { reportDataFromJson, samePath, seriesFromJson, writeReport } from '../report.js';
 
 interface ViewOptions {
   out?: string;
@@ -32,9 +33,9 @@ export function register(program: Command): void {
       action((results: string, opts: ViewOptions) => {
         const text = readTextFile(results);
         const series = (opts.series ?? []).flatMap((f) =>
-          seriesFromJson(parseJsonFile(readTextFile(f), f), f),
+          seriesFromJson(parseJsonText(readTextFile(f), f), f),
         );
-        const data = reportDataFromJson(parseJsonFile(text, results), results, { title: opts.title, series });
+        const data = reportDataFromJson(parseJsonText(text, results), results, { title: opts.title, series });
         const out = opts.out ?? join(dirname(results), 'report.html');
         if (samePath(out, results) || (opts.series ?? []).some((f) => samePath(out, f)))
           throw new InputError('the report would overwrite one of its inputs; choose another --out', {

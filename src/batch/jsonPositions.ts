@@ -1,3 +1,5 @@
+import { InputError } from '../errors.js';
+
 /**
  * Finds where a JSON text first goes wrong, for an error message with a line and column. Node's
  * JSON.parse reports a position for some errors only; this small recursive-descent checker walks
@@ -96,5 +98,32 @@ export function firstJsonError(text: string): { offset: number; reason: string }
     return null;
   } catch (err) {
     return err as { offset: number; reason: string };
+  }
+}
+
+/** 1-based line and column of a character offset, as an editor shows them. */
+export function lineColumnAt(text: string, offset: number): { line: number; column: number } {
+  let line = 1;
+  let lineStart = 0;
+  for (let i = 0; i < offset && i < text.length; i++) {
+    if (text.charCodeAt(i) === 10) {
+      line++;
+      lineStart = i + 1;
+    }
+  }
+  return { line, column: offset - lineStart + 1 };
+}
+
+/**
+ * Parses JSON text (a leading byte-order mark is ignored), or throws an InputError naming the file and
+ * the line and column where the text first stops being JSON.
+ */
+export function parseJsonText(text: string, file: string): unknown {
+  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+  try {
+    return JSON.parse(body);
+  } catch {
+    const fault = firstJsonError(body) ?? { offset: 0, reason: 'not valid JSON' };
+    throw new InputError(`not valid JSON: ${fault.reason}`, { file, ...lineColumnAt(body, fault.offset) });
   }
 }

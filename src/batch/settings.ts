@@ -3,7 +3,7 @@ import { InputError, type InputLocation } from '../errors.js';
 import type { FitOptions } from '../fit/options.js';
 import { splitSourceRef } from '../io/sourceRef.js';
 import type { Cell } from './csvCells.js';
-import { firstJsonError } from './jsonPositions.js';
+import { firstJsonError, lineColumnAt } from './jsonPositions.js';
 import { MANIFEST_COLUMNS, type ManifestColumn, type ManifestRow } from './manifest.js';
 
 /** A file named in a manifest or settings file, as written there, split at the last '#'. */
@@ -121,18 +121,6 @@ export function stripJsonComments(text: string): string {
     }
   }
   return out;
-}
-
-function lineColumnAt(text: string, offset: number): { line: number; column: number } {
-  let line = 1;
-  let last = -1;
-  for (let i = 0; i < offset && i < text.length; i++) {
-    if (text[i] === '\n') {
-      line++;
-      last = i;
-    }
-  }
-  return { line, column: offset - last };
 }
 
 /**

@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { SCHEMA_VERSION } from '../../shared/schema.js';
-import { jsonErrorOffset } from '../../cli/commands/rates.js';
+import { firstJsonError } from '../../src/batch/jsonPositions.js';
 import { fitResultWith } from '../physics/fitFixture.js';
 import { runCliSync } from './runCli.js';
 
@@ -44,7 +44,7 @@ function sampleResult(sample: string) {
   };
 }
 
-describe('jsonErrorOffset', () => {
+describe('firstJsonError', () => {
   it('agrees with the engine’s JSON.parse on what is valid, and points at the first bad character', () => {
     const cases: [string, number][] = [
       ['{"a":1}', -1],
@@ -64,8 +64,9 @@ describe('jsonErrorOffset', () => {
       } catch {
         valid = false;
       }
-      expect(jsonErrorOffset(text) < 0).toBe(valid);
-      expect(jsonErrorOffset(text)).toBe(offset);
+      const offsetFound = firstJsonError(text)?.offset ?? -1;
+      expect(offsetFound < 0).toBe(valid);
+      expect(offsetFound).toBe(offset);
     }
   });
 });
@@ -135,7 +136,9 @@ describe('lumirate rates', () => {
     writeFileSync(at('broken.json'), '{\n  "schemaVersion": "1.0.0",\n  "components": [,]\n}\n');
     const r = lumirate('rates', '--from', at('broken.json'), '--qy', '0.4');
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/broken\.json line 3, column 18: not valid JSON: unexpected ','/);
+    expect(r.stderr).toMatch(
+      /broken\.json line 3, column 18: not valid JSON: expected a value but found ','/,
+    );
   });
 });
 

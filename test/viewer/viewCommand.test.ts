@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import { Command } from 'commander';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { register } from '../../cli/commands/view.js';
-import { parseJsonFile } from '../../cli/report.js';
+import { parseJsonText } from '../../src/batch/jsonPositions.js';
 import { REPORT_DATA_ID } from '../../shared/reportHtml.js';
 import type { ReportData } from '../../shared/schema.js';
 import { InputError } from '../../src/errors.js';
@@ -117,12 +117,12 @@ describe('lumirate view', () => {
   });
 });
 
-describe('parseJsonFile', () => {
+describe('parseJsonText', () => {
   // Positions counted by hand from the text below; lines and columns are 1-based, as an editor shows them.
   it('names the file, line and column of the first fault', () => {
     const err = (() => {
       try {
-        parseJsonFile('{\n"a": 1,\n"b" 2}', 'f.json');
+        parseJsonText('{\n"a": 1,\n"b" 2}', 'f.json');
       } catch (e) {
         return e;
       }
@@ -132,6 +132,6 @@ describe('parseJsonFile', () => {
   });
 
   it('reads a file that starts with a byte-order mark', () => {
-    expect(parseJsonFile('\ufeff[1]', 'g.json')).toEqual([1]);
+    expect(parseJsonText('\ufeff[1]', 'g.json')).toEqual([1]);
   });
 });
