@@ -84,6 +84,17 @@ export function paramLayout(mode: IrfMode, nComponents: number, scatter: boolean
 const FD_LN_TAU = 1e-5;
 const FD_REL = 1e-5;
 
+/**
+ * The IRF's slopes (see `irfSlopes`) by IRF array: the fitter's IRF arrays are made once per IRF and
+ * decay axis and never written to, and a batch builds one model per decay from the same one.
+ */
+const slopesCache = new WeakMap<Float64Array, Float64Array>();
+function slopesOf(irf: Float64Array): Float64Array {
+  let d = slopesCache.get(irf);
+  if (!d) slopesCache.set(irf, (d = irfSlopes(irf)));
+  return d;
+}
+
 export class DecayModel {
   readonly layout: ParamLayout;
   private readonly n: number;
@@ -104,7 +115,7 @@ export class DecayModel {
     this.dShiftBasis = new Float64Array(n);
     this.irfShifted = new Float64Array(n);
     this.dIrf = new Float64Array(n);
-    this.slopes = setup.irf ? irfSlopes(setup.irf) : null;
+    this.slopes = setup.irf ? slopesOf(setup.irf) : null;
   }
 
   /** IRF shape as used by the model at these parameters (fractions per channel), for display. */

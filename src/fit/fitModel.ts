@@ -2,7 +2,8 @@ import { SCHEMA_VERSION, type ComponentResult, type FitResult } from '../../shar
 import { ComputationError } from '../errors.js';
 import type { Histogram } from '../io/types.js';
 import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
-import { DecayModel } from './decayModel.js';
+import type { DecayModel } from './decayModel.js';
+import { decayModelFor } from './globalBlock.js';
 import { durbinWatson, informationCriteria, residualAutocorrelation, runsTest } from './diagnostics.js';
 import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
 import {
@@ -67,22 +68,7 @@ function runFit(setup: FitSetup): FitRun {
   const i1 = setup.fitEnd;
   const nFit = i1 - i0;
   const dt = setup.binWidthNs;
-  let totalInRange = 0;
-  for (let i = i0; i < i1; i++) totalInRange += counts[i];
-  const model = new DecayModel({
-    mode: setup.mode,
-    nComponents: setup.nComponents,
-    channels: setup.channels,
-    binWidthNs: dt,
-    firstEdgeNs: setup.firstEdgeNs,
-    periodNs: setup.periodNs,
-    irf: setup.irf,
-    scatter: setup.scatter,
-    scatterScale: Math.max(totalInRange, 1),
-    fitStart: i0,
-    fitEnd: i1,
-    tailStart: setup.tailStart,
-  });
+  const model = decayModelFor(setup);
   const L = model.layout;
   const P = L.count;
   const nc = setup.nComponents;
@@ -196,6 +182,7 @@ function runFit(setup: FitSetup): FitRun {
     loss: setup.statistic === 'neyman' ? 'leastSquares' : setup.statistic,
     lower: Float64Array.from(free, (k) => lower[k]),
     upper: Float64Array.from(free, (k) => upper[k]),
+    onesColumn: freeRow[L.background],
     evaluate(p, out, jac) {
       for (let f = 0; f < F; f++) all[free[f]] = p[f];
       if (!model.evaluate(all, full, jac, freeRow)) return false;

@@ -53,6 +53,17 @@ export function tailLifetimeEstimate(
   return slope < 0 ? -binWidthNs / slope : NaN;
 }
 
+/**
+ * Work arrays of the grid search, kept between calls (they are a fit's largest allocations after
+ * the optimiser's): `scratch(k, length)` is slot k, grown when too short, as a view of `length`.
+ * Every element a caller reads it has written first in the same call.
+ */
+const scratchSlots: Float64Array[] = [];
+function scratch(k: number, length: number): Float64Array {
+  if (!(scratchSlots[k]?.length >= length)) scratchSlots[k] = new Float64Array(length);
+  return scratchSlots[k].subarray(0, length);
+}
+
 export interface StartCandidate {
   /** Full parameter vector (layout of the DecayModel). */
   params: Float64Array;
@@ -116,8 +127,8 @@ export function gridStarts(
   const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
   const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
   const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
-  const flat = new Float64Array(C * M);
-  const full = new Float64Array(s.channels);
+  const flat = scratch(0, C * M);
+  const full = scratch(1, s.channels);
   const gather = (curve: Float64Array, column: number, scale: number) => {
     for (let k = 0, i = i0; k < M; k++, i += stride) flat[column * M + k] = scale * curve[i];
   };
@@ -136,8 +147,8 @@ export function gridStarts(
   }
   if (bgCol >= 0) flat.fill(1, bgCol * M, (bgCol + 1) * M);
   if (scCol >= 0) gather(irfCurve!, scCol, s.scatterScale);
-  const w = new Float64Array(M);
-  const wy = new Float64Array(M);
+  const w = scratch(2, M);
+  const wy = scratch(3, M);
   let yWy = 0;
   for (let k = 0, i = i0; k < M; k++, i += stride) {
     let v = counts[i];
@@ -150,7 +161,7 @@ export function gridStarts(
   const gram = new Float64Array(C * C);
   const rhs = new Float64Array(C);
   // Gram matrix and projection of the data in one pass.
-  weightedGram(flat, C, M, w, wy, gram, rhs);
+  weightedGram(flat, C, M, w, wy, gram, rhs, bgCol);
 
   // Every ascending choice of grid lifetimes for the free slots.
   const combos: number[][] = [];
