@@ -1,5 +1,13 @@
 import type { IrfMode } from '../../shared/schema.js';
-import { exponentialBasis, irfSlopes, shiftIrf, tailBasis } from '../model/reconvolve.js';
+import {
+  binMeans,
+  exponentialBasis,
+  exponentialBasisBinMeans,
+  irfSlopes,
+  shiftIrf,
+  tailBasis,
+  type ChannelBins,
+} from '../model/reconvolve.js';
 import { emgBasis, gaussianIrfFractions } from '../model/gaussianIrf.js';
 
 /**
@@ -95,6 +103,13 @@ function slopesOf(irf: Float64Array): Float64Array {
   return d;
 }
 
+let pool: Float64Array[] | null = null;
+/** Five work arrays of length n, kept for the next model of the same length. */
+function scratchPool(n: number): Float64Array[] {
+  if (!pool || pool[0].length !== n) pool = Array.from({ length: 5 }, () => new Float64Array(n));
+  return pool;
+}
+
 export class DecayModel {
   readonly layout: ParamLayout;
   private readonly n: number;
@@ -106,15 +121,22 @@ export class DecayModel {
   private work: Float64Array | null = null;
   private readonly slopes: Float64Array | null;
 
-  constructor(readonly setup: DecayModelSetup) {
+  /**
+   * `sharedScratch`: take the work arrays from a pool kept between models of the same length instead
+   * of allocating them (they are the largest allocations of a single fit). Only for a model that is
+   * used alone until it is dropped, as a single-decay fit's is: models sharing the pool overwrite each
+   * other's arrays, and `basisCurve(…, sameIrf)` relies on the previous call's shifted IRF.
+   */
+  constructor(
+    readonly setup: DecayModelSetup,
+    sharedScratch = false,
+  ) {
     this.layout = paramLayout(setup.mode, setup.nComponents, setup.scatter);
     const n = setup.channels;
     this.n = n;
-    this.basis = new Float64Array(n);
-    this.dBasis = new Float64Array(n);
-    this.dShiftBasis = new Float64Array(n);
-    this.irfShifted = new Float64Array(n);
-    this.dIrf = new Float64Array(n);
+    const pool = sharedScratch ? scratchPool(n) : null;
+    [this.basis, this.dBasis, this.dShiftBasis, this.irfShifted, this.dIrf] =
+      pool ?? Array.from({ length: 5 }, () => new Float64Array(n));
     this.slopes = setup.irf ? slopesOf(setup.irf) : null;
   }
 
@@ -158,6 +180,31 @@ export class DecayModel {
         out,
       );
     } else tailBasis(this.n, s.tailStart, s.binWidthNs, tauNs, s.periodNs, out, null);
+  }
+
+  /**
+   * Means of the basis curve of one lifetime over channel bins (see `binMeans`), into
+   * out[offset + k], at the IRF settings in `all`; `sameIrf` as for `basisCurve`. A measured IRF with
+   * a single pulse takes the closed-form tail (`exponentialBasisBinMeans`); other models bin the
+   * whole curve.
+   */
+  basisBinMeans(
+    all: Float64Array,
+    tauNs: number,
+    bins: ChannelBins,
+    out: Float64Array,
+    offset: number,
+    sameIrf = false,
+  ): void {
+    const s = this.setup;
+    if (s.mode === 'measured' && s.irf && !(s.periodNs !== null && s.periodNs > 0)) {
+      if (!sameIrf)
+        shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null, this.slopes);
+      exponentialBasisBinMeans(this.irfShifted, s.binWidthNs, tauNs, bins, out, offset, this.basis);
+      return;
+    }
+    this.basisCurve(all, tauNs, this.basis, sameIrf);
+    binMeans(this.basis, bins, out, offset);
   }
 
   /**
@@ -255,8 +302,10 @@ export class DecayModel {
     } else {
       this.evaluateGaussian(all, full, jac, freeRow);
     }
-    for (let i = i0; i < i1; i++) if (!Number.isFinite(full[i])) return false;
-    return true;
+    // One sum instead of a test per channel: a NaN or an infinity anywhere makes it non-finite.
+    let sum = 0;
+    for (let i = i0; i < i1; i++) sum += full[i];
+    return Number.isFinite(sum);
   }
 
   /** Gaussian IRF: amplitudes and background analytic, lifetimes, centre and width by central differences. */

@@ -68,7 +68,7 @@ function runFit(setup: FitSetup): FitRun {
   const i1 = setup.fitEnd;
   const nFit = i1 - i0;
   const dt = setup.binWidthNs;
-  const model = decayModelFor(setup);
+  const model = decayModelFor(setup, true);
   const L = model.layout;
   const P = L.count;
   const nc = setup.nComponents;
@@ -173,11 +173,11 @@ function runFit(setup: FitSetup): FitRun {
     for (let i = 0; i < nFit; i++) weights[i] = 1 / Math.max(data[i], 1);
   }
   const all = new Float64Array(P);
-  const full = new Float64Array(setup.channels);
+  const full = fullAxisScratch(setup.channels);
   const problem: LmProblem = {
     nParams: F,
     nPoints: nFit,
-    data: Float64Array.from(data),
+    data,
     weights,
     loss: setup.statistic === 'neyman' ? 'leastSquares' : setup.statistic,
     lower: Float64Array.from(free, (k) => lower[k]),
@@ -225,6 +225,14 @@ function runFit(setup: FitSetup): FitRun {
         : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
     );
   return { model, all: chosen.all, free, freeRow, lm: chosen.lm, lower, upper };
+}
+
+let sharedFull: Float64Array | null = null;
+
+/** The optimiser's full-axis model array, kept between fits (fits run one at a time in a thread). */
+function fullAxisScratch(n: number): Float64Array {
+  if (!sharedFull || sharedFull.length !== n) sharedFull = new Float64Array(n);
+  return sharedFull;
 }
 
 let sharedWorkspace: LmWorkspace | null = null;

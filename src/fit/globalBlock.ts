@@ -9,24 +9,30 @@ import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
 import { DecayModel } from './decayModel.js';
 import { SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
 
-/** The decay model of a setup, as the single-decay fitter builds it (scatter scaled by the counts in range). */
-export function decayModelFor(setup: FitSetup): DecayModel {
+/**
+ * The decay model of a setup, as the single-decay fitter builds it (scatter scaled by the counts in
+ * range). `sharedScratch`: see the DecayModel constructor; only for a model used alone.
+ */
+export function decayModelFor(setup: FitSetup, sharedScratch = false): DecayModel {
   let totalInRange = 0;
   for (let i = setup.fitStart; i < setup.fitEnd; i++) totalInRange += setup.counts[i];
-  return new DecayModel({
-    mode: setup.mode,
-    nComponents: setup.nComponents,
-    channels: setup.channels,
-    binWidthNs: setup.binWidthNs,
-    firstEdgeNs: setup.firstEdgeNs,
-    periodNs: setup.periodNs,
-    irf: setup.irf,
-    scatter: setup.scatter,
-    scatterScale: Math.max(totalInRange, 1),
-    fitStart: setup.fitStart,
-    fitEnd: setup.fitEnd,
-    tailStart: setup.tailStart,
-  });
+  return new DecayModel(
+    {
+      mode: setup.mode,
+      nComponents: setup.nComponents,
+      channels: setup.channels,
+      binWidthNs: setup.binWidthNs,
+      firstEdgeNs: setup.firstEdgeNs,
+      periodNs: setup.periodNs,
+      irf: setup.irf,
+      scatter: setup.scatter,
+      scatterScale: Math.max(totalInRange, 1),
+      fitStart: setup.fitStart,
+      fitEnd: setup.fitEnd,
+      tailStart: setup.tailStart,
+    },
+    sharedScratch,
+  );
 }
 
 /**

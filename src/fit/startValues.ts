@@ -1,4 +1,5 @@
 import type { DecayModel } from './decayModel.js';
+import { binCount, binMeans, type ChannelBins } from '../model/reconvolve.js';
 import { choleskySolve, weightedGram } from './lm.js';
 
 /**
@@ -6,9 +7,9 @@ import { choleskySolve, weightedGram } from './lm.js';
  * lifetime's scale; a geometric grid of lifetimes around it (one component: τ_tail·2^k,
  * k = −4 … 4; more components: k = −6 … 0 in steps of 0.75, then 0.5, 1, 1.75, 2.5; steps finer than
  * 2^1.5 start a 2-exponential fit close enough to save an iteration) is tried in every combination,
- * each with its amplitudes, background and scatter solved by weighted linear least squares (weights
- * 1/max(n, 1), amplitudes kept ≥ 0 unless negative ones are allowed); the best few combinations
- * start the full fit.
+ * each with its amplitudes, background and scatter solved by weighted linear least squares on the
+ * decay cut into ~500 bins (weights from the counts in each bin, amplitudes kept ≥ 0 unless negative
+ * ones are allowed); the best few combinations start the full fit.
  */
 
 /**
@@ -52,6 +53,9 @@ export function tailLifetimeEstimate(
   const slope = (sw * sxy - sx * sy) / den;
   return slope < 0 ? -binWidthNs / slope : NaN;
 }
+
+/** Points (bins of the fit range) on which the lifetime grid is ranked. */
+const GRID_POINTS = 500;
 
 /**
  * Work arrays of the grid search, kept between calls (they are a fit's largest allocations after
@@ -117,46 +121,47 @@ export function gridStarts(
   grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
   while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
 
-  // Starting values need no more than ~1000 channels: every stride-th one of the fit range, weighted
-  // up to match. Columns over those channels, packed in one array: grid bases, fixed-lifetime bases,
-  // background, scatter.
-  const stride = Math.max(1, Math.floor(nFit / 1000));
-  const M = Math.ceil(nFit / stride);
+  // Starting values need no more than ~500 points: the fit range is cut into bins of `width`
+  // channels (the last one may be shorter) and every curve and the counts are taken as bin means.
+  // Binning keeps every count (sampling every width-th channel would throw most away), and a mean
+  // keeps the background's column at 1. Columns over the bins, packed in one array: grid bases,
+  // fixed-lifetime bases, background, scatter.
+  const bins: ChannelBins = { from: i0, to: i1, width: Math.max(1, Math.floor(nFit / GRID_POINTS)) };
+  const M = binCount(bins);
   const fixedCount = opts.fixedTauNs.filter((t) => t > 0).length;
   const bgCol = opts.fixedBackground === null ? grid.length + fixedCount : -1;
   const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
   const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
   const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
   const flat = scratch(0, C * M);
-  const full = scratch(1, s.channels);
-  const gather = (curve: Float64Array, column: number, scale: number) => {
-    for (let k = 0, i = i0; k < M; k++, i += stride) flat[column * M + k] = scale * curve[i];
-  };
-  for (let k = 0; k < grid.length; k++) {
-    model.basisCurve(base, grid[k], full, k > 0);
-    gather(full, k, 1);
-  }
+  for (let k = 0; k < grid.length; k++) model.basisBinMeans(base, grid[k], bins, flat, k * M, k > 0);
   const fixedCol: number[] = [];
   let next = grid.length;
   for (let j = 0; j < nc; j++) {
     if (opts.fixedTauNs[j] > 0) {
-      model.basisCurve(base, opts.fixedTauNs[j], full);
       fixedCol[j] = next;
-      gather(full, next++, 1);
+      model.basisBinMeans(base, opts.fixedTauNs[j], bins, flat, M * next++);
     }
   }
   if (bgCol >= 0) flat.fill(1, bgCol * M, (bgCol + 1) * M);
-  if (scCol >= 0) gather(irfCurve!, scCol, s.scatterScale);
+  if (scCol >= 0) binMeans(irfCurve!, bins, flat, scCol * M, s.scatterScale);
+  // Weighted least squares on the bin means: a mean of c channels holding S counts has variance
+  // ≈ max(S, 1)/c², so w = c²/max(S, 1) and χ² is that of the bin sums.
   const w = scratch(2, M);
   const wy = scratch(3, M);
+  const y = scratch(4, M);
+  binMeans(counts, bins, y, 0);
+  const sc = irfCurve && opts.fixedScatter !== null ? scratch(5, M) : null;
+  if (sc) binMeans(irfCurve!, bins, sc, 0, opts.fixedScatter! * s.scatterScale);
   let yWy = 0;
-  for (let k = 0, i = i0; k < M; k++, i += stride) {
-    let v = counts[i];
-    w[k] = stride / Math.max(v, 1);
-    if (opts.fixedBackground !== null) v -= opts.fixedBackground;
-    if (irfCurve && opts.fixedScatter !== null) v -= opts.fixedScatter * s.scatterScale * irfCurve[i];
-    wy[k] = w[k] * v;
-    yWy += wy[k] * v;
+  for (let k = 0; k < M; k++) {
+    const a = i0 + k * bins.width;
+    const c = Math.min(a + bins.width, i1) - a;
+    w[k] = (c * c) / Math.max(y[k] * c, 1);
+    if (opts.fixedBackground !== null) y[k] -= opts.fixedBackground;
+    if (sc) y[k] -= sc[k];
+    wy[k] = w[k] * y[k];
+    yWy += wy[k] * y[k];
   }
   const gram = new Float64Array(C * C);
   const rhs = new Float64Array(C);

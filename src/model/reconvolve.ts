@@ -469,3 +469,81 @@ export function tailBasis(
     E *= x;
   }
 }
+
+/** Bins of a channel range: [from + k·width, min(from + (k + 1)·width, to)), k = 0 … ⌈(to − from)/width⌉ − 1. */
+export interface ChannelBins {
+  from: number;
+  to: number;
+  width: number;
+}
+
+/** Number of bins (the last one may be shorter than `width`). */
+export const binCount = (b: ChannelBins): number => Math.ceil((b.to - b.from) / b.width);
+
+/** Means of `curve` (times `scale`) over the bins, into out[offset + k]. */
+export function binMeans(
+  curve: ArrayLike<number>,
+  bins: ChannelBins,
+  out: Float64Array,
+  offset: number,
+  scale = 1,
+): void {
+  const M = binCount(bins);
+  for (let k = 0; k < M; k++) {
+    const a = bins.from + k * bins.width;
+    const b = Math.min(a + bins.width, bins.to);
+    let sum = 0;
+    for (let i = a; i < b; i++) sum += curve[i];
+    out[offset + k] = (scale * sum) / (b - a);
+  }
+}
+
+/**
+ * Means of the single-pulse basis curve of `exponentialBasis` over the bins, into out[offset + k]:
+ * the same values as `binMeans` of the whole curve, to rounding. Past the IRF's last non-zero channel
+ * e the curve is geometric, cₑ·x^(i − e) with x = e^{−Δ/τ}, so only channels 0 … e are run one by
+ * one and the bins beyond are summed in closed form: the work is the IRF's support plus one step per
+ * bin instead of every channel (the start-value search ranks a dozen lifetimes this way). `work`: at
+ * least as long as `irf`.
+ */
+export function exponentialBasisBinMeans(
+  irf: Float64Array,
+  binWidthNs: number,
+  tauNs: number,
+  bins: ChannelBins,
+  out: Float64Array,
+  offset: number,
+  work: Float64Array,
+): void {
+  const n = irf.length;
+  let end = n;
+  while (end > 0 && irf[end - 1] === 0) end--;
+  // Channels 0 … e, e = end (the first zero after the support, where the curve is cₑ = K·S), run as
+  // the full basis would run them; a head that ends in a zero gives the same values there.
+  const head = Math.min(end + 1, n);
+  exponentialBasis(irf.subarray(0, head), binWidthNs, tauNs, null, work.subarray(0, head), null, null, null);
+  const h = binWidthNs / tauNs;
+  const last = work[head - 1];
+  // Σ_{i=a}^{b−1} x^(i − e) over a full bin = x^(a − e)·(1 − x^w)/(1 − x), by expm1 for long τ.
+  const fullBinRatio = Math.expm1(-bins.width * h) / Math.expm1(-h);
+  const stepFactor = Math.exp(-bins.width * h);
+  const M = binCount(bins);
+  let power = 0;
+  let prevA2 = -1;
+  for (let k = 0; k < M; k++) {
+    const a = bins.from + k * bins.width;
+    const b = Math.min(a + bins.width, bins.to);
+    let sum = 0;
+    const headEnd = Math.min(b, head);
+    for (let i = a; i < headEnd; i++) sum += work[i];
+    if (b > head) {
+      const a2 = Math.max(a, head);
+      // x^(a2 − e) with e = head − 1: exact at the first tail bin, then one factor per bin step.
+      power = prevA2 >= 0 && a2 - prevA2 === bins.width ? power * stepFactor : Math.exp(-(a2 - head + 1) * h);
+      prevA2 = a2;
+      const ratio = b - a2 === bins.width ? fullBinRatio : Math.expm1(-(b - a2) * h) / Math.expm1(-h);
+      sum += last * power * ratio;
+    }
+    out[offset + k] = sum / (b - a);
+  }
+}

@@ -119,22 +119,50 @@ describe('residualAutocorrelation', () => {
     expect(c[2]).toBeCloseTo(0.36, 1);
   });
 
-  it('equals the definition, one plain pass per lag, bit for bit at every length and lag count', () => {
-    const direct = (r: number[], lagMax: number): number[] => {
-      const n = r.length;
-      const meanSq = r.reduce((a, v) => a + v * v, 0) / n;
-      return Array.from({ length: lagMax + 1 }, (_, j) => {
-        if (j >= n || !(meanSq > 0)) return NaN;
-        let s = 0;
-        for (let i = 0; i + j < n; i++) s += r[i] * r[i + j];
-        return s / (n - j) / meanSq;
-      });
-    };
+  // Reference: the definition, one plain pass per lag.
+  const direct = (r: number[], lagMax: number): number[] => {
+    const n = r.length;
+    const meanSq = r.reduce((a, v) => a + v * v, 0) / n;
+    return Array.from({ length: lagMax + 1 }, (_, j) => {
+      if (j >= n || !(meanSq > 0)) return NaN;
+      let s = 0;
+      for (let i = 0; i + j < n; i++) s += r[i] * r[i + j];
+      return s / (n - j) / meanSq;
+    });
+  };
+
+  it('equals the definition bit for bit on short series and few lags (summed directly)', () => {
     const next = normalSource(13);
-    for (const n of [1, 2, 3, 4, 5, 7, 8, 9, 31, 64, 257]) {
+    for (const n of [1, 2, 3, 4, 5, 7, 8, 9, 31, 63, 64, 257]) {
       const r = Array.from({ length: n }, next);
-      for (const lagMax of [0, 1, 2, 3, 4, 5, 6, 7, n - 1, n, n + 3]) {
+      for (const lagMax of [0, 1, 2, 3, 4, 5, 6, 7, 15, n - 1, n, n + 3].filter((l) => n < 64 || l < 16)) {
         expect(Array.from(residualAutocorrelation(r, lagMax))).toEqual(direct(r, lagMax));
+      }
+    }
+  });
+
+  it('equals the definition to rounding on long series with many lags (by FFT)', () => {
+    const next = normalSource(14);
+    // Lengths and lag counts around the powers of two the zero-padding rounds n + maxLag up to
+    // (100 + 28 = 128 exactly, 101 + 28 one above), odd and even n, lags up to n − 1 and beyond.
+    for (const [n, lags] of [
+      [64, [16, 17, 63, 64, 70]],
+      [100, [27, 28, 29]],
+      [101, [27, 28, 50]],
+      [257, [16, 255, 256, 300]],
+      [1000, [24, 256]],
+      [3900, [256, 3899]],
+    ] as const) {
+      const r = Array.from({ length: n }, next);
+      for (const lagMax of lags) {
+        const got = residualAutocorrelation(r, lagMax);
+        const want = direct(r, lagMax);
+        expect(got.length).toBe(want.length);
+        want.forEach((w, j) => {
+          if (Number.isNaN(w)) expect(got[j]).toBeNaN();
+          else expect(Math.abs(got[j] - w)).toBeLessThan(1e-12);
+        });
+        expect(got[0]).toBe(1);
       }
     }
   });

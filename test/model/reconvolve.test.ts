@@ -1,5 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { exponentialBasis, prepareIrf, shiftIrf, tailBasis, fwhm } from '../../src/model/reconvolve.js';
+import {
+  binMeans,
+  exponentialBasis,
+  exponentialBasisBinMeans,
+  prepareIrf,
+  shiftIrf,
+  tailBasis,
+  fwhm,
+  type ChannelBins,
+} from '../../src/model/reconvolve.js';
 import { gaussianIrfFractions } from '../../src/model/gaussianIrf.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
 
@@ -104,6 +113,35 @@ describe('exponentialBasis', () => {
         expect(Math.abs(dShift[i] - (bu[i] - bd[i]) / (2 * e)) / scale).toBeLessThan(1e-6);
       }
     }
+  });
+});
+
+describe('exponentialBasisBinMeans', () => {
+  // Reference: the bin means of the whole single-pulse curve, summed channel by channel.
+  it('equals the bin means of the whole curve for short and long lifetimes, full and partial bins', () => {
+    const n = 1000;
+    const dt = 0.0122;
+    // A sharp and a wide IRF; the second reaches the last channel, so there is no geometric tail.
+    const sharp = gaussIrf(n, dt, 2, 0.15 / 2.3548);
+    const wide = Float64Array.from({ length: n }, (_, i) => (i >= 100 ? 1 / (n - 100) : 0));
+    const binsList: ChannelBins[] = [
+      { from: 0, to: n, width: 1 },
+      { from: 120, to: n, width: 7 },
+      { from: 150, to: 900, width: 50 },
+      { from: 10, to: 171, width: 20 },
+    ];
+    const work = new Float64Array(n);
+    for (const irf of [sharp, wide])
+      for (const tau of [0.005, 0.06, 0.8, 3.5, 1000])
+        for (const bins of binsList) {
+          const M = Math.ceil((bins.to - bins.from) / bins.width);
+          const want = new Float64Array(M);
+          binMeans(basis(irf, dt, tau, null), bins, want, 0);
+          const got = new Float64Array(M + 3).fill(NaN);
+          exponentialBasisBinMeans(irf, dt, tau, bins, got, 3, work);
+          const peak = Math.max(...want);
+          for (let k = 0; k < M; k++) expect(Math.abs(got[k + 3] - want[k])).toBeLessThan(1e-12 * peak);
+        }
   });
 });
 
