@@ -1,13 +1,7 @@
 import { InputError } from '../errors.js';
 import { NS_PER, type TimeUnit } from '../../shared/units.js';
 import type { Histogram, ImportReport } from './types.js';
-import {
-  findColumn,
-  parseCellNumber,
-  parseColumnNumbers,
-  readTextTable,
-  type TextTable,
-} from './textTable.js';
+import { cellNumber, findColumn, parseColumnNumbers, readTextTable, type TextTable } from './textTable.js';
 import { classifyTimeColumn, parseTimeUnit } from './columnNames.js';
 import { findMetadataBinWidth } from './metadata.js';
 import { checkCounts, formatNumber, relativeDiffers } from './validate.js';
@@ -52,7 +46,15 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
       file: source,
     });
   }
-  const table = readTextTable(text, source);
+  return histogramFromTable(readTextTable(text, source), options);
+}
+
+/**
+ * The histogram in a table already read by `readTextTable` (or by its general reader alone): the
+ * whole of `parseHistogramText` after the split, with the same checks and messages.
+ */
+export function histogramFromTable(table: TextTable, options: HistogramParseOptions): Histogram {
+  const { source } = options;
   const ctx = { source, lines: table.metadataLines };
   const metaBin = findMetadataBinWidth(table.metadata, ctx);
   const metaBinNs = metaBin?.ns;
@@ -61,7 +63,7 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
   const time = findTimeColumn(table, options, metaBinNs);
   const countsIndex = chooseCountsColumn(table, options.column, time?.index ?? -1);
   const countsName = table.columns[countsIndex];
-  if (table.rows.length < 2) {
+  if (table.rowCount < 2) {
     throw new InputError('has only one data row; a histogram needs at least two channels', {
       file: source,
       line: table.rows[0].line,
@@ -69,7 +71,7 @@ export function parseHistogramText(text: string, options: HistogramParseOptions)
   }
 
   const counts = parseColumnNumbers(table, countsIndex, 'a count');
-  warnings.push(...checkCounts(counts, table.rows, countsIndex, source));
+  warnings.push(...checkCounts(counts, table, countsIndex));
 
   let binWidthNs: number;
   let binWidthSource: string;
@@ -215,17 +217,9 @@ function findTimeColumn(
     return { index: 0, unit, how: `unit ${unit} from '# time_unit'` };
   }
   const binNs = options.binWidthNs ?? knownBinNs;
-  if (binNs !== undefined && table.rows.length >= 2) {
-    const a = parseCellNumber(table.rows[0].cells[0], table.decimalMark, {
-      file: source,
-      line: table.rows[0].line,
-      column: 1,
-    });
-    const b = parseCellNumber(table.rows[1].cells[0], table.decimalMark, {
-      file: source,
-      line: table.rows[1].line,
-      column: 1,
-    });
+  if (binNs !== undefined && table.rowCount >= 2) {
+    const a = cellNumber(table, 0, 0);
+    const b = cellNumber(table, 1, 0);
     const step = b - a;
     if (step === 1 && Number.isInteger(a))
       return { index: 0, unit: 'channel', how: 'channel indices (step 1)' };
@@ -330,11 +324,13 @@ function readUniformAxis(
   index: number,
   nsPerUnit: number,
 ): { startNs: number; stepNs: number } {
-  const { rows, source } = table;
-  const n = rows.length;
+  const { source } = table;
+  const n = table.rowCount;
   const t = parseColumnNumbers(table, index, 'a time');
   for (let i = 1; i < n; i++) {
     if (!(t[i] > t[i - 1])) {
+      // Rows are asked for only here and below: a table read by the fast path makes them on demand.
+      const rows = table.rows;
       throw new InputError(
         `time ${rows[i].cells[index].trim()} does not increase after ${rows[i - 1].cells[index].trim()} on line ${rows[i - 1].line}; the time axis must be strictly increasing`,
         { file: source, line: rows[i].line, column: index + 1 },
@@ -349,6 +345,7 @@ function readUniformAxis(
     const off = Math.abs(t[i] - t[i - 1] - median);
     if (off <= relTol) continue;
     // Only a step outside 0.1 % needs the printed precision of its two cells.
+    const rows = table.rows;
     const rounding = (printedUlp(rows[i].cells[index]) + printedUlp(rows[i - 1].cells[index])) / 2;
     if (off > Math.min(rounding * 1.000001, 0.1 * median)) {
       throw new InputError(
@@ -392,20 +389,19 @@ export function kthSmallest(values: Float64Array, k: number): number {
 
 /** Channel indices must be consecutive integers; returns the first. */
 function readChannelIndices(table: TextTable, index: number): number {
-  const { rows, source } = table;
   const v = parseColumnNumbers(table, index, 'a channel index');
   const first = v[0];
-  for (let i = 0; i < rows.length; i++) {
-    const where = { file: source, line: rows[i].line, column: index + 1 };
+  for (let i = 0; i < v.length; i++) {
+    if (Number.isInteger(v[i]) && v[i] === first + i) continue;
+    const row = table.rows[i];
+    const where = { file: table.source, line: row.line, column: index + 1 };
     if (!Number.isInteger(v[i])) {
-      throw new InputError(`channel index ${rows[i].cells[index].trim()} is not a whole number`, where);
+      throw new InputError(`channel index ${row.cells[index].trim()} is not a whole number`, where);
     }
-    if (v[i] !== first + i) {
-      throw new InputError(
-        `channel ${v[i]} follows channel ${first + i - 1}; channels must be consecutive`,
-        where,
-      );
-    }
+    throw new InputError(
+      `channel ${v[i]} follows channel ${first + i - 1}; channels must be consecutive`,
+      where,
+    );
   }
   return first;
 }

@@ -1,5 +1,6 @@
 import Papa from 'papaparse';
 import { InputError } from '../errors.js';
+import { COMMA_MARK, POINT_MARK, scanDecimal, scanEnd, scanNumericRows } from './scanNumericRows.js';
 
 /**
  * The shared first stage of every importer: text → comment metadata + a rectangular table of cell
@@ -24,8 +25,18 @@ export interface TextTable {
   header: string[] | null;
   /** Header names, or col1, col2 … without a header. */
   columns: string[];
-  /** Data rows; every row has `columns.length` cells. */
+  /**
+   * Data rows; every row has `columns.length` cells. A table read by the fast path makes them only
+   * when asked (for a message, say): read `rowCount` and `numbers` where they serve.
+   */
   rows: TableRow[];
+  /** Number of data rows. */
+  rowCount: number;
+  /**
+   * Every cell's value, by column, when every cell is a plain decimal number (the fast path read
+   * them while splitting); entries past `rowCount` are spare. Absent otherwise.
+   */
+  numbers?: Float64Array[];
   /** `# key: value` metadata, keys normalised (see `normaliseMetadataKey`). */
   metadata: Record<string, string>;
   /** The line each metadata key came from, for messages. */
@@ -114,83 +125,42 @@ export function parseCellNumber(
   return v;
 }
 
-/** Exact powers of ten: every 10^k with k ≤ 22 is a double, so one multiply or divide rounds correctly. */
-const EXACT_POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
-
 /**
- * The value of a plain decimal cell, scanned character by character: optional sign, digits with at
- * most one decimal mark (`mark` is its char code), an optional exponent; no spaces. Only when the
- * digits form an integer below 2⁵³ and the decimal exponent is within ±22 is the result computed
- * here, by one exact-operand multiply or divide, which IEEE arithmetic rounds correctly, so it is the
- * same double that `Number` gives (Clinger's fast path). Anything else returns NaN and takes the
- * general path, which also names a bad cell.
- */
-function scanPlainNumber(cell: string, mark: number): number {
-  const n = cell.length;
-  let i = 0;
-  let negative = false;
-  let c = cell.charCodeAt(0);
-  if (c === 45 || c === 43) {
-    negative = c === 45;
-    i = 1;
-  }
-  let mantissa = 0;
-  let digits = 0;
-  let scale = 0;
-  let seenMark = false;
-  for (; i < n; i++) {
-    c = cell.charCodeAt(i);
-    if (c >= 48 && c <= 57) {
-      mantissa = mantissa * 10 + (c - 48);
-      digits++;
-      if (seenMark) scale--;
-    } else if (c === mark && !seenMark) seenMark = true;
-    else break;
-  }
-  if (digits === 0 || digits > 15) return NaN;
-  if (i < n) {
-    if (c !== 101 && c !== 69) return NaN;
-    i++;
-    let expNegative = false;
-    c = cell.charCodeAt(i);
-    if (c === 45 || c === 43) {
-      expNegative = c === 45;
-      i++;
-    }
-    if (i === n) return NaN;
-    let exp = 0;
-    for (; i < n; i++) {
-      c = cell.charCodeAt(i);
-      if (c < 48 || c > 57 || exp > 1000) return NaN;
-      exp = exp * 10 + (c - 48);
-    }
-    scale += expNegative ? -exp : exp;
-  }
-  if (scale < -22 || scale > 22) return NaN;
-  const v = scale < 0 ? mantissa / EXACT_POW10[-scale] : mantissa * EXACT_POW10[scale];
-  return negative ? -v : v;
-}
-
-/**
- * Parses a whole column as finite numbers, naming the first cell that is not one. The common cell
- * (already trimmed, plain decimal) is scanned by hand with no regular expression or new string; the
- * rest go through the general rules.
+ * Parses a whole column as finite numbers, naming the first cell that is not one. A table read by the
+ * fast path has them already; otherwise the common cell (already trimmed, plain decimal) is scanned
+ * by hand with no regular expression or new string, and the rest go through the general rules.
  */
 export function parseColumnNumbers(table: TextTable, index: number, what = 'a number'): Float64Array {
+  if (table.numbers) return table.numbers[index].slice(0, table.rowCount);
   const { rows, decimalMark, source } = table;
   const re = decimalMark === '.' ? NUMBER : NUMBER_COMMA;
-  const mark = decimalMark.charCodeAt(0);
+  const marks = decimalMark === '.' ? POINT_MARK : COMMA_MARK;
   const out = new Float64Array(rows.length);
   for (let i = 0; i < rows.length; i++) {
     const cell = rows[i].cells[index];
-    let v = scanPlainNumber(cell, mark);
-    if (Number.isNaN(v))
+    let v = scanDecimal(cell, 0, marks);
+    if (scanEnd() !== cell.length || Number.isNaN(v))
       v = re.test(cell) ? Number(decimalMark === ',' ? cell.replace(',', '.') : cell) : NaN;
     out[i] = Number.isFinite(v)
       ? v
       : parseCellNumber(cell, decimalMark, { file: source, line: rows[i].line, column: index + 1 }, what);
   }
   return out;
+}
+
+/**
+ * The number in one cell: from the columns read by the fast path when there are some (every cell of
+ * such a table is a finite number), else parsed from the cell's text, with the error `parseCellNumber` gives.
+ */
+export function cellNumber(table: TextTable, row: number, index: number, what = 'a number'): number {
+  if (table.numbers) return table.numbers[index][row];
+  const { line, cells } = table.rows[row];
+  return parseCellNumber(
+    cells[index],
+    table.decimalMark,
+    { file: table.source, line, column: index + 1 },
+    what,
+  );
 }
 
 function clip(s: string): string {
@@ -203,18 +173,160 @@ interface ContentLines {
   text: string[];
 }
 
+/** Where `# key: value` comment lines are collected, with a warning for a key given twice. */
+interface MetadataSink {
+  metadata: Record<string, string>;
+  metadataLines: Record<string, number>;
+  warnings: string[];
+}
+
+/** Reads one comment line (trimmed, starting with `#`) on line `line` into the metadata, if it is `key: value`. */
+function readCommentLine(trimmed: string, line: number, sink: MetadataSink): void {
+  const m = /^#+\s*([^:=]*?[^\s:=])\s*[:=]\s*(.*)$/.exec(trimmed);
+  if (!m) return;
+  const { metadata, metadataLines } = sink;
+  const key = normaliseMetadataKey(m[1]);
+  const value = m[2].trim();
+  if (key in metadata && metadata[key] !== value) {
+    sink.warnings.push(
+      `metadata '${key}' is given twice (line ${metadataLines[key]}: '${metadata[key]}', line ${line}: '${value}'); the later value is used`,
+    );
+  }
+  metadata[key] = value;
+  metadataLines[key] = line;
+}
+
+/**
+ * The first content line's cells, without the empty last field a trailing separator leaves
+ * (spreadsheet exports), and the header they make: null when every cell reads as a number.
+ */
+function firstRow(cells: string[]): { first: string[]; header: string[] | null } {
+  const first = cells.length > 1 && cells[cells.length - 1].trim() === '' ? cells.slice(0, -1) : cells;
+  const numeric = first.every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
+  return { first, header: numeric ? null : first.map((c) => c.trim()) };
+}
+
+/** The first unnamed or repeated header name, as the error to throw, or null. */
+function headerProblem(columns: string[], line: number, source: string): InputError | null {
+  const seen = new Map<string, number>();
+  for (let j = 0; j < columns.length; j++) {
+    const name = columns[j];
+    if (name === '')
+      return new InputError(`header column ${j + 1} has no name`, { file: source, line, column: j + 1 });
+    const key = name.toLowerCase();
+    const before = seen.get(key);
+    if (before !== undefined) {
+      return new InputError(`header names '${name}' twice (columns ${before + 1} and ${j + 1})`, {
+        file: source,
+        line,
+        column: j + 1,
+      });
+    }
+    seen.set(key, j);
+  }
+  return null;
+}
+
 /**
  * Splits text into a table. Accepts a UTF-8 byte-order mark, CRLF/CR/LF line ends, blank lines and
  * `#` comment lines anywhere; `# key: value` (or `# key = value`) comments become metadata.
+ *
+ * Most files are comment lines, a header and rows of plain numbers: those are read by a scanner that
+ * makes no string per line or cell (see `scanNumericRows`). Whatever it declines, from the first
+ * character, goes to the general reader, which alone refuses files and so names every bad cell.
  */
 export function readTextTable(text: string, source: string): TextTable {
+  return readPlainTable(text, source) ?? readGeneralTable(text, source);
+}
+
+/** Separator character codes of the delimiters the fast path reads. */
+const SEPARATOR_CODE: Partial<Record<Delimiter, number>> = {
+  comma: 44,
+  tab: 9,
+  semicolon: 59,
+  'single column': -1,
+};
+
+/** True for a character that the textual check counts against a file, and for a CR inside a line. */
+function hasControlCharacter(line: string): boolean {
+  for (let i = 0; i < line.length; i++) {
+    const c = line.charCodeAt(i);
+    if ((c < 32 && c !== 9) || c === 0x7f || c === 0xfffd) return true;
+  }
+  return false;
+}
+
+/**
+ * The fast path: comment and blank lines, then a header or a first data row, then nothing but rows
+ * of plain numbers. Null for any other file, or anything the general reader would warn about or refuse.
+ */
+function readPlainTable(text: string, source: string): TextTable | null {
+  const sink: MetadataSink = { metadata: {}, metadataLines: {}, warnings: [] };
+  let pos = text.charCodeAt(0) === 0xfeff ? 1 : 0;
+  let line = 0;
+  let firstText: string | null = null;
+  let firstStart = 0;
+  while (pos < text.length) {
+    const nl = text.indexOf('\n', pos);
+    const end = nl < 0 ? text.length : nl;
+    const raw = text.slice(pos, end > pos && text.charCodeAt(end - 1) === 13 ? end - 1 : end);
+    line++;
+    if (hasControlCharacter(raw)) return null;
+    firstStart = pos;
+    pos = end + 1;
+    const trimmed = raw.trim();
+    if (trimmed === '') continue;
+    if (trimmed.startsWith('#')) {
+      readCommentLine(trimmed, line, sink);
+      continue;
+    }
+    firstText = raw;
+    break;
+  }
+  if (firstText === null || firstText.includes('"')) return null;
+  const delimiter = detectDelimiter(firstText);
+  const separator = SEPARATOR_CODE[delimiter];
+  if (separator === undefined) return null;
+  const cells = separator < 0 ? [firstText.trim()] : splitAt(firstText, String.fromCharCode(separator));
+  const { first, header } = firstRow(cells);
+  if (first !== cells || (header && headerProblem(header, line, source))) return null;
+  const scanned = scanNumericRows(
+    text,
+    header ? Math.min(pos, text.length) : firstStart,
+    first.length,
+    separator,
+  );
+  if (!scanned) return null;
+  const table: TextTable = {
+    source,
+    delimiter,
+    decimalMark: scanned.decimalMark,
+    header,
+    columns: header ?? first.map((_, j) => `col${j + 1}`),
+    get rows(): TableRow[] {
+      // Made once, by the general reader, only for a caller that needs the cells' text.
+      const rows = readGeneralTable(text, source).rows;
+      Object.defineProperty(table, 'rows', { value: rows });
+      return rows;
+    },
+    rowCount: scanned.rowCount,
+    numbers: scanned.columns,
+    ...sink,
+    headerLine: header ? line : null,
+  };
+  return table;
+}
+
+/**
+ * The general reader: every layout FORMATS.md describes, and every refusal with its line and column.
+ * `readTextTable` uses it for whatever its fast path declines; call it directly only to compare the two.
+ */
+export function readGeneralTable(text: string, source: string): TextTable {
   assertTextual(text, source);
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   // A plain split is several times faster than the regular expression when there is no CR at all.
   const lines = text.includes('\r') ? text.split(/\r\n|\r|\n/) : text.split('\n');
-  const metadata: Record<string, string> = {};
-  const metadataLines: Record<string, number> = {};
-  const warnings: string[] = [];
+  const sink: MetadataSink = { metadata: {}, metadataLines: {}, warnings: [] };
   const content: ContentLines = { line: [], text: [] };
   for (let i = 0; i < lines.length; i++) {
     const raw = lines[i];
@@ -228,18 +340,7 @@ export function readTextTable(text: string, source: string): TextTable {
     const trimmed = raw.trim();
     if (trimmed === '') continue;
     if (trimmed.startsWith('#')) {
-      const m = /^#+\s*([^:=]*?[^\s:=])\s*[:=]\s*(.*)$/.exec(trimmed);
-      if (m) {
-        const key = normaliseMetadataKey(m[1]);
-        const value = m[2].trim();
-        if (key in metadata && metadata[key] !== value) {
-          warnings.push(
-            `metadata '${key}' is given twice (line ${metadataLines[key]}: '${metadata[key]}', line ${i + 1}: '${value}'); the later value is used`,
-          );
-        }
-        metadata[key] = value;
-        metadataLines[key] = i + 1;
-      }
+      readCommentLine(trimmed, i + 1, sink);
       continue;
     }
     content.line.push(i + 1);
@@ -254,11 +355,7 @@ export function readTextTable(text: string, source: string): TextTable {
 
   const delimiter = detectDelimiter(content.text[0]);
   const split = splitLines(content, delimiter, source);
-  // A trailing separator (spreadsheet exports) leaves an empty last field on each line: no column.
-  const first =
-    split[0].length > 1 && split[0][split[0].length - 1].trim() === '' ? split[0].slice(0, -1) : split[0];
-  const firstNumeric = first.every((c) => looksNumeric(c, '.') || looksNumeric(c, ','));
-  const header = firstNumeric ? null : first.map((c) => c.trim());
+  const { first, header } = firstRow(split[0]);
   const headerLine = header ? content.line[0] : null;
   const dataCells = header ? split.slice(1) : split;
   const dataLineOffset = header ? 1 : 0;
@@ -281,25 +378,8 @@ export function readTextTable(text: string, source: string): TextTable {
     if (joined.length === dataCells[0].length) columns = joined;
   }
   if (header) {
-    const seen = new Map<string, number>();
-    columns.forEach((name, j) => {
-      if (name === '') {
-        throw new InputError(`header column ${j + 1} has no name`, {
-          file: source,
-          line: headerLine!,
-          column: j + 1,
-        });
-      }
-      const key = name.toLowerCase();
-      if (seen.has(key)) {
-        throw new InputError(`header names '${name}' twice (columns ${seen.get(key)! + 1} and ${j + 1})`, {
-          file: source,
-          line: headerLine!,
-          column: j + 1,
-        });
-      }
-      seen.set(key, j);
-    });
+    const problem = headerProblem(columns, headerLine!, source);
+    if (problem) throw problem;
   }
 
   const width = columns.length;
@@ -325,10 +405,9 @@ export function readTextTable(text: string, source: string): TextTable {
     header,
     columns,
     rows,
-    metadata,
-    metadataLines,
+    rowCount: rows.length,
+    ...sink,
     headerLine,
-    warnings,
   };
 }
 

@@ -1,5 +1,5 @@
 import { InputError } from '../errors.js';
-import type { TableRow } from './textTable.js';
+import type { TextTable } from './textTable.js';
 
 /** Counts above this are no photon-counting histogram (a 64-bit counter at 1 GHz needs 12 days for 1e15). */
 export const MAX_COUNTS = 1e15;
@@ -8,23 +8,19 @@ export const MAX_COUNTS = 1e15;
  * Checks parsed counts: finite, ≥ 0 and ≤ 1e15, else an InputError at the cell. Returns warnings:
  * whole numbers are expected, since Poisson statistics hold for raw photon counts only.
  */
-export function checkCounts(
-  counts: Float64Array,
-  rows: TableRow[],
-  column: number,
-  source: string,
-): string[] {
+export function checkCounts(counts: Float64Array, table: TextTable, column: number): string[] {
   let nonInteger = 0;
   let firstNonInteger = -1;
   let total = 0;
   for (let i = 0; i < counts.length; i++) {
     const v = counts[i];
-    const where = { file: source, line: rows[i].line, column: column + 1 };
-    if (v < 0)
-      throw new InputError(`count ${rows[i].cells[column].trim()} is negative; counts must be ≥ 0`, where);
-    if (v > MAX_COUNTS) {
+    if (v < 0 || v > MAX_COUNTS) {
+      // The rows (with each cell's text) are asked for only when a message needs them.
+      const cell = table.rows[i].cells[column].trim();
+      const where = { file: table.source, line: table.rows[i].line, column: column + 1 };
+      if (v < 0) throw new InputError(`count ${cell} is negative; counts must be ≥ 0`, where);
       throw new InputError(
-        `count ${rows[i].cells[column].trim()} exceeds ${MAX_COUNTS.toExponential(0)}, which no photon-counting histogram reaches; is this the right column?`,
+        `count ${cell} exceeds ${MAX_COUNTS.toExponential(0)}, which no photon-counting histogram reaches; is this the right column?`,
         where,
       );
     }
@@ -36,6 +32,7 @@ export function checkCounts(
   }
   const warnings: string[] = [];
   if (nonInteger > 0) {
+    const rows = table.rows;
     warnings.push(
       `${nonInteger} ${nonInteger === 1 ? 'count is not a whole number' : 'counts are not whole numbers'} (first on line ${rows[firstNonInteger].line}: ${rows[firstNonInteger].cells[column].trim()}); Poisson statistics assume raw photon counts, not scaled or background-subtracted data`,
     );

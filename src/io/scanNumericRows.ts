@@ -1,0 +1,168 @@
+/**
+ * The importer's fast path for the common file: rows of plain decimal numbers, read straight from the
+ * text into one Float64Array per column, with no string made per line or per cell. It accepts only
+ * what the general table reader would read to the same numbers without a word of complaint, and
+ * answers null for anything else (a quote, a comment or metadata line among the data, a bad cell, a
+ * ragged row, a lone CR, mixed decimal marks …), so that the general reader, which names the line
+ * and column of every refusal, takes the file from the start.
+ */
+
+/** Exact powers of ten: every 10^k with k ≤ 22 is a double, so one multiply or divide rounds correctly. */
+const EXACT_POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
+
+/** Accept a decimal point (`.`) in `scanDecimal`. */
+export const POINT_MARK = 1;
+/** Accept a decimal comma (`,`) in `scanDecimal`. */
+export const COMMA_MARK = 2;
+
+/** Where the last `scanDecimal` stopped: the index just past its number. */
+let scanStop = 0;
+/** The decimal mark the last `scanDecimal` met (46 for `.`, 44 for `,`), or 0 for none. */
+let scanMark = 0;
+
+/**
+ * Reads the number that starts at `text[start]` in the grammar of a plain decimal cell, the same as
+ * the table reader's `[+-]?(\d+[.]?\d*|[.]\d+)([eE][+-]?\d+)?` with the accepted decimal marks
+ * (`marks`, a sum of POINT_MARK and COMMA_MARK): no spaces, no `Infinity`, no hexadecimal. It stops
+ * at the first character that cannot continue the number; `scanEnd()` says where. Returns NaN when
+ * no number starts there or an exponent has no digits.
+ *
+ * The value is the double `Number` gives for that text. When the digits form an integer below 2⁵³
+ * and the decimal exponent is within ±22, it is computed here by one multiply or divide of exact
+ * operands, which IEEE arithmetic rounds correctly (Clinger's fast path); otherwise `Number` reads
+ * the cell's text. Out-of-range text gives ±Infinity or 0, as `Number` does.
+ */
+export function scanDecimal(text: string, start: number, marks: number): number {
+  let i = start;
+  let c = text.charCodeAt(i);
+  let negative = false;
+  if (c === 45 || c === 43) {
+    negative = c === 45;
+    c = text.charCodeAt(++i);
+  }
+  let mantissa = 0;
+  let digits = 0;
+  let scale = 0;
+  let mark = 0;
+  for (;;) {
+    if (c >= 48 && c <= 57) {
+      mantissa = mantissa * 10 + (c - 48);
+      digits++;
+      if (mark !== 0) scale--;
+    } else if (mark === 0 && ((c === 46 && marks & POINT_MARK) || (c === 44 && marks & COMMA_MARK))) {
+      mark = c;
+    } else break;
+    c = text.charCodeAt(++i);
+  }
+  scanMark = mark;
+  if (digits === 0) {
+    scanStop = i;
+    return NaN;
+  }
+  let exp = 0;
+  if (c === 101 || c === 69) {
+    c = text.charCodeAt(++i);
+    let expNegative = false;
+    if (c === 45 || c === 43) {
+      expNegative = c === 45;
+      c = text.charCodeAt(++i);
+    }
+    const expStart = i;
+    while (c >= 48 && c <= 57) {
+      // Beyond 10⁶ the value is 0 or Infinity whatever follows; stop growing the integer.
+      if (exp < 1e6) exp = exp * 10 + (c - 48);
+      c = text.charCodeAt(++i);
+    }
+    scanStop = i;
+    if (i === expStart) return NaN;
+    if (expNegative) exp = -exp;
+  }
+  scanStop = i;
+  scale += exp;
+  if (digits <= 15 && scale >= -22 && scale <= 22) {
+    const v = scale < 0 ? mantissa / EXACT_POW10[-scale] : mantissa * EXACT_POW10[scale];
+    return negative ? -v : v;
+  }
+  const cell = text.slice(start, i);
+  return Number(mark === 44 ? cell.replace(',', '.') : cell);
+}
+
+/** The index just past the number the last `scanDecimal` read (or where it failed). */
+export function scanEnd(): number {
+  return scanStop;
+}
+
+/** The columns of a numeric table read by `scanNumericRows`. */
+export interface NumericRows {
+  /** One array per column; only the first `rowCount` entries are rows (the rest is spare capacity). */
+  columns: Float64Array[];
+  rowCount: number;
+  decimalMark: '.' | ',';
+}
+
+/**
+ * Reads rows of `width` plain decimal cells from `start` to the end of the text, cells separated by
+ * `separator` (a character code; −1 for a single column), spaces or tabs (when tab is not the
+ * separator) allowed around a cell, lines ended by LF or CRLF, empty lines skipped. Decimal commas
+ * are accepted where the separator is not a comma; a file using both marks is left to the general
+ * reader, which names the cell. Returns null unless every line is such a row, there is at least one,
+ * and every value is finite.
+ */
+export function scanNumericRows(
+  text: string,
+  start: number,
+  width: number,
+  separator: number,
+): NumericRows | null {
+  const n = text.length;
+  const marks = separator === 44 ? POINT_MARK : POINT_MARK | COMMA_MARK;
+  const isPad = (c: number) => c === 32 || (c === 9 && separator !== 9);
+  // A first guess at the number of rows from the first line's length; doubled when it runs out.
+  const firstEnd = text.indexOf('\n', start);
+  let capacity = Math.ceil((n - start) / Math.max(1, (firstEnd < 0 ? n : firstEnd) - start + 1)) + 16;
+  let columns = Array.from({ length: width }, () => new Float64Array(capacity));
+  let rows = 0;
+  let sawPoint = false;
+  let sawComma = false;
+  let i = start;
+  while (i < n) {
+    let c = text.charCodeAt(i);
+    if (c === 10) {
+      i++;
+      continue;
+    }
+    if (c === 13 && text.charCodeAt(i + 1) === 10) {
+      i += 2;
+      continue;
+    }
+    if (rows === capacity) {
+      capacity *= 2;
+      columns = columns.map((col) => {
+        const grown = new Float64Array(capacity);
+        grown.set(col);
+        return grown;
+      });
+    }
+    for (let j = 0; j < width; j++) {
+      while (isPad(c)) c = text.charCodeAt(++i);
+      const v = scanDecimal(text, i, marks);
+      if (!Number.isFinite(v)) return null;
+      if (scanMark === 46) sawPoint = true;
+      else if (scanMark === 44) sawComma = true;
+      columns[j][rows] = v;
+      i = scanStop;
+      c = text.charCodeAt(i);
+      while (isPad(c)) c = text.charCodeAt(++i);
+      if (j < width - 1) {
+        if (c !== separator) return null;
+        c = text.charCodeAt(++i);
+      }
+    }
+    if (c === 13) c = text.charCodeAt(++i);
+    if (c === 10) i++;
+    else if (i < n) return null;
+    rows++;
+  }
+  if (rows === 0 || (sawPoint && sawComma)) return null;
+  return { columns, rowCount: rows, decimalMark: sawComma ? ',' : '.' };
+}
