@@ -38,7 +38,12 @@ export interface ComponentResult {
   fixed?: boolean;
 }
 
-/** Curves for plotting, all on the same channel axis. `null` marks a channel outside the fit range. */
+/**
+ * Curves for plotting, all on the same channel axis. `null` marks a channel outside the fit range.
+ * A batch's results.json stores them rounded for plotting (time to the decimals its channel width
+ * needs, counts exactly, model and IRF to 7 significant digits, residuals and autocorrelation to 6
+ * decimals; see shared/curvesJson.ts); the fit's parameters and statistics keep full precision.
+ */
 export interface FitCurves {
   /** Left edge of each channel, ns. */
   timeNs: number[];
