@@ -100,9 +100,14 @@ export interface NumericRows {
   decimalMark: '.' | ',';
 }
 
+/** `scanNumericRows` separator: one column, no separator. */
+export const SINGLE_COLUMN = -1;
+/** `scanNumericRows` separator: any run of spaces and tabs. */
+export const WHITESPACE = -2;
+
 /**
  * Reads rows of `width` plain decimal cells from `start` to the end of the text, cells separated by
- * `separator` (a character code; −1 for a single column), spaces or tabs (when tab is not the
+ * `separator` (a character code, SINGLE_COLUMN or WHITESPACE), spaces or tabs (when tab is not the
  * separator) allowed around a cell, lines ended by LF or CRLF, empty lines skipped. Decimal commas
  * are accepted where the separator is not a comma; a file using both marks is left to the general
  * reader, which names the cell. Returns null unless every line is such a row, there is at least one,
@@ -117,6 +122,7 @@ export function scanNumericRows(
   const n = text.length;
   const marks = separator === 44 ? POINT_MARK : POINT_MARK | COMMA_MARK;
   const isPad = (c: number) => c === 32 || (c === 9 && separator !== 9);
+  const whitespace = separator === WHITESPACE;
   // A first guess at the number of rows from the first line's length; doubled when it runs out.
   const firstEnd = text.indexOf('\n', start);
   let capacity = Math.ceil((n - start) / Math.max(1, (firstEnd < 0 ? n : firstEnd) - start + 1)) + 16;
@@ -150,12 +156,16 @@ export function scanNumericRows(
       if (scanMark === 46) sawPoint = true;
       else if (scanMark === 44) sawComma = true;
       columns[j][rows] = v;
-      i = scanStop;
+      const end = (i = scanStop);
       c = text.charCodeAt(i);
       while (isPad(c)) c = text.charCodeAt(++i);
       if (j < width - 1) {
-        if (c !== separator) return null;
-        c = text.charCodeAt(++i);
+        if (whitespace) {
+          if (i === end) return null;
+        } else {
+          if (c !== separator) return null;
+          c = text.charCodeAt(++i);
+        }
       }
     }
     if (c === 13) c = text.charCodeAt(++i);

@@ -1,6 +1,14 @@
 import Papa from 'papaparse';
 import { InputError } from '../errors.js';
-import { COMMA_MARK, POINT_MARK, scanDecimal, scanEnd, scanNumericRows } from './scanNumericRows.js';
+import {
+  COMMA_MARK,
+  POINT_MARK,
+  SINGLE_COLUMN,
+  WHITESPACE,
+  scanDecimal,
+  scanEnd,
+  scanNumericRows,
+} from './scanNumericRows.js';
 
 /**
  * The shared first stage of every importer: text → comment metadata + a rectangular table of cell
@@ -240,11 +248,12 @@ export function readTextTable(text: string, source: string): TextTable {
 }
 
 /** Separator character codes of the delimiters the fast path reads. */
-const SEPARATOR_CODE: Partial<Record<Delimiter, number>> = {
+const SEPARATOR_CODE: Record<Delimiter, number> = {
   comma: 44,
   tab: 9,
   semicolon: 59,
-  'single column': -1,
+  whitespace: WHITESPACE,
+  'single column': SINGLE_COLUMN,
 };
 
 /** True for a character that the textual check counts against a file, and for a CR inside a line. */
@@ -286,8 +295,7 @@ function readPlainTable(text: string, source: string): TextTable | null {
   if (firstText === null || firstText.includes('"')) return null;
   const delimiter = detectDelimiter(firstText);
   const separator = SEPARATOR_CODE[delimiter];
-  if (separator === undefined) return null;
-  const cells = separator < 0 ? [firstText.trim()] : splitAt(firstText, String.fromCharCode(separator));
+  const cells = splitPlainLine(firstText, delimiter);
   const { first, header } = firstRow(cells);
   if (first !== cells || (header && headerProblem(header, line, source))) return null;
   const scanned = scanNumericRows(
@@ -427,14 +435,22 @@ function detectDelimiter(first: string): Delimiter {
 const PAPA_DELIMITER: Record<string, string> = { comma: ',', tab: '\t', semicolon: ';' };
 
 function splitLines(content: ContentLines, delimiter: Delimiter, source: string): string[][] {
-  if (delimiter === 'single column') return content.text.map((t) => [t.trim()]);
-  if (delimiter === 'whitespace') return content.text.map((t) => t.trim().split(/\s+/));
-  const sep = PAPA_DELIMITER[delimiter];
+  if (delimiter === 'single column' || delimiter === 'whitespace')
+    return content.text.map((t) => splitPlainLine(t, delimiter));
   // Lines without a quote are cut at each separator (the bulk of any numeric table, and several times
   // faster); papaparse handles quoted fields. One row per line keeps line numbers exact.
   return content.text.map((t, i) =>
-    t.includes('"') ? splitQuoted(t, content.line[i], sep, source) : splitAt(t, sep),
+    t.includes('"')
+      ? splitQuoted(t, content.line[i], PAPA_DELIMITER[delimiter], source)
+      : splitPlainLine(t, delimiter),
   );
+}
+
+/** The cells of a line without quotes. */
+function splitPlainLine(text: string, delimiter: Delimiter): string[] {
+  if (delimiter === 'single column') return [text.trim()];
+  if (delimiter === 'whitespace') return text.trim().split(/\s+/);
+  return splitAt(text, PAPA_DELIMITER[delimiter]);
 }
 
 /**

@@ -86,7 +86,7 @@ const plainNumber = fc
   })
   .filter((s) => /\d/.test(s.replace(/[eE].*$/, '')));
 
-const SEPARATORS = [',', '\t', ';', ''] as const;
+const SEPARATORS = [',', '\t', ';', ' ', '   ', ''] as const;
 
 /** A table of plain numbers with random dressing; every one is a file the fast path should take. */
 const plainTable = fc
@@ -105,10 +105,12 @@ const plainTable = fc
   })
   .map((g) => {
     const width = g.sep === '' ? 1 : g.width;
-    // A decimal comma only where a semicolon or tab separates columns: elsewhere the comma would.
-    const comma = g.decimalComma && width > 1 && (g.sep === ';' || g.sep === '\t');
-    // A lone header with a space would read as two whitespace-separated columns.
-    const header = width === 1 && g.header === 'time (ps)' ? 'time_ps' : g.header;
+    const blank = g.sep.trim() === '';
+    // A decimal comma only where the comma does not separate columns: with a semicolon or tab, or
+    // with spaces below a header (a comma on the first line makes the comma the separator).
+    const comma = g.decimalComma && width > 1 && (g.sep === ';' || g.sep === '\t' || (blank && g.header));
+    // A header with a space would read as two whitespace-separated names.
+    const header = (width === 1 || blank) && g.header === 'time (ps)' ? 'time_ps' : g.header;
     const nl = g.crlf ? '\r\n' : '\n';
     const lines: string[] = [];
     if (g.meta) lines.push('# sample: fast', '# bin_width_ns: 0.01', '#', '');
@@ -193,7 +195,7 @@ describe('the fast path of the table reader', () => {
       'time_ns,counts\n0,1,\n1,2,\n', // trailing separators
       'time_ns,counts\n"0",1\n1,2\n', // a quoted cell
       'time_ns,counts\r0,1\r1,2\r', // CR line ends
-      'time_ns counts\n0 1\n1 2\n', // whitespace columns
+      'time (ps) counts\n0 1\n1 2\n', // a whitespace header whose unit must be joined to its name
       'a;b\n1,5;2\n2.5;3\n', // mixed decimal marks: refused
       'time_ns,counts\n0,1\n1\n', // a short row: refused
       'time_ns,counts\n0,1\n1,x\n', // a word: refused when the column is read
