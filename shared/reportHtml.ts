@@ -14,6 +14,7 @@
  * display copy (model and IRF to 4 significant digits and 0.001 counts, residuals to 0.01 σ, autocorrelation to 0.001
  * and to half the fit range); the batch's results.json keeps full precision.
  */
+import { JsonBytes } from './jsonBytes.js';
 import type { FitCurves, ReportData, SampleResult } from './schema.js';
 
 export interface ReportAssets {
@@ -69,6 +70,11 @@ function packAxis(timeNs: number[]): PackedAxis {
   return { startNs: timeNs[0], stepNs: step, length: n };
 }
 
+/** The page shows the autocorrelation to half the fit range, beyond which few pairs enter a lag. */
+function autocorrelationShown(c: FitCurves): number {
+  return Math.min(c.autocorrelation.length, Math.ceil(c.autocorrelation.length / 2) + 1);
+}
+
 export function packCurves(c: FitCurves): PackedCurves {
   return {
     timeNs: packAxis(c.timeNs),
@@ -77,11 +83,7 @@ export function packCurves(c: FitCurves): PackedCurves {
     model: roundCounts(c.model),
     irf: roundCounts(c.irf) as number[],
     weightedResiduals: roundTo(c.weightedResiduals, 2),
-    // The page shows the autocorrelation to half the fit range, beyond which few pairs enter a lag.
-    autocorrelation: roundTo(
-      c.autocorrelation.slice(0, Math.ceil(c.autocorrelation.length / 2) + 1),
-      3,
-    ) as number[],
+    autocorrelation: roundTo(c.autocorrelation.slice(0, autocorrelationShown(c)), 3) as number[],
     fitStartIndex: c.fitStartIndex,
     fitEndIndex: c.fitEndIndex,
   };
@@ -131,9 +133,29 @@ function summaryOf(data: ReportData): ReportData {
   return { ...data, samples };
 }
 
+/**
+ * Writes a sample's curves block for the page: the JSON of `packCurves(curves)`, printed straight from
+ * the curves (no packed copy is made). Numbers and `null` are all it holds, so it is script-safe as
+ * it stands.
+ */
+export function writePackedCurves(w: JsonBytes, c: FitCurves): JsonBytes {
+  w.ascii('{"timeNs":');
+  const axis = packAxis(c.timeNs);
+  if (Array.isArray(axis)) w.exactArray(axis);
+  else w.ascii(JSON.stringify(axis));
+  w.ascii(',"data":').exactArray(c.data);
+  w.ascii(',"model":').significantArray(c.model, 4, 1e-3);
+  w.ascii(',"irf":').significantArray(c.irf, 4, 1e-3);
+  w.ascii(',"weightedResiduals":').fixedArray(c.weightedResiduals, 2);
+  w.ascii(',"autocorrelation":').fixedArray(c.autocorrelation, 3, autocorrelationShown(c));
+  w.ascii(',"fitStartIndex":').exact(c.fitStartIndex);
+  w.ascii(',"fitEndIndex":').exact(c.fitEndIndex);
+  return w.byte(125);
+}
+
 /** A sample's curves as the JSON text of its block in the page: packed, rounded and script-safe. */
 export function curvesForScript(curves: FitCurves): string {
-  return jsonForScript(packCurves(curves));
+  return new TextDecoder().decode(writePackedCurves(new JsonBytes(), curves).take());
 }
 
 /**

@@ -1,14 +1,17 @@
 /**
  * Worker thread of `lumirate batch`: reads a sample's files, hashes them, runs the fit and the physics,
- * and sends back the result as UTF-8 JSON (serialised and encoded here, in parallel, rather than on the
- * main thread), with the sample's curves block for the report when one is written.
+ * and sends back the result as UTF-8 JSON (written here, in parallel, rather than on the main thread,
+ * with compact curves: `writeSampleResult`), with the sample's curves block for the report when one is
+ * written.
  * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
  */
 import { readFileSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
-import { curvesForScript } from '../../shared/reportHtml.js';
+import { JsonBytes } from '../../shared/jsonBytes.js';
+import { writePackedCurves } from '../../shared/reportHtml.js';
 import type { SampleResult } from '../../shared/schema.js';
 import { sha256Hex } from '../../src/batch/hash.js';
+import { writeSampleResult } from '../../src/batch/resultJson.js';
 import {
   failedSample,
   runGroup,
@@ -105,26 +108,13 @@ function runTask(task: WorkTask): SampleResult[] {
   return task.members.map((m) => out.get(m.settings.sample)!);
 }
 
-/**
- * A text as one UTF-8 line (newline appended) in a buffer of its own, which can be transferred.
- * Appending the newline to the bytes rather than to the text spares copying a large text once more.
- */
-function utf8Line(text: string): Uint8Array {
-  const n = Buffer.byteLength(text, 'utf8');
-  const line = Buffer.allocUnsafeSlow(n + 1);
-  line.write(text, 0, 'utf8');
-  line[n] = 10;
-  return line;
-}
+const out = new JsonBytes(1 << 18);
 
-/** The report's curves block of a result, when it has curves as plain arrays (as the fitter makes them). */
+/** The report's curves block of a result, as one UTF-8 line. */
 function reportCurves(r: SampleResult): Uint8Array | undefined {
   const c = r.fit?.curves;
   if (!setup.report || !c) return undefined;
-  const arrays = [c.timeNs, c.data, c.model, c.irf, c.weightedResiduals, c.autocorrelation];
-  // Anything else (a typed array) is left to the main thread, which packs it from the JSON text.
-  if (!arrays.every(Array.isArray)) return undefined;
-  return utf8Line(curvesForScript(c));
+  return writePackedCurves(out.reset(), c).takeLine();
 }
 
 parentPort!.on('message', (task: WorkTask) => {
@@ -133,7 +123,7 @@ parentPort!.on('message', (task: WorkTask) => {
   const reply: WorkReply = {
     id: task.id,
     results: results.map((r) => {
-      const json = utf8Line(JSON.stringify(r));
+      const json = writeSampleResult(out.reset(), r).takeLine();
       const curves = reportCurves(r);
       transfer.push(json.buffer as ArrayBuffer);
       if (curves) transfer.push(curves.buffer as ArrayBuffer);
