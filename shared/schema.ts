@@ -88,13 +88,20 @@ export interface FitResult {
   /** Intensity-weighted average lifetime Σaᵢτᵢ²/Σaᵢτᵢ, ns. */
   tauIntAvgNs: number;
   tauIntAvgErrNs: number;
-  /** Shift of the IRF relative to the decay, ns (positive: the decay arrives later). */
+  /**
+   * Shift of the IRF relative to the decay's fluorescence, ns (positive: the decay arrives later): the
+   * colour shift between the IRF's wavelength and the emission's. The scatter term keeps the IRF's
+   * own timing (scattered light has the excitation wavelength).
+   */
   shiftNs: number;
   shiftErrNs: number;
   /** Constant background, counts per channel. */
   background: number;
   backgroundErr: number;
-  /** Scatter: amplitude of the IRF-shaped term, as a fraction of the total counts in the fit range. */
+  /**
+   * Scatter: amplitude of the IRF-shaped term (the measured IRF unshifted), as a fraction of the total
+   * counts in the fit range.
+   */
   scatter: number;
   scatterErr: number;
   /** Width (FWHM) of the modelled Gaussian IRF, ns; only when irfMode is 'gaussian'. */

@@ -140,6 +140,15 @@ export class DecayModel {
     this.slopes = setup.irf ? slopesOf(setup.irf) : null;
   }
 
+  /**
+   * Shape of the scatter term at these parameters (fractions per channel): the measured IRF as
+   * measured (scatter has the IRF's timing, see `evaluate`), or the modelled Gaussian IRF.
+   */
+  scatterCurve(all: Float64Array): Float64Array {
+    const s = this.setup;
+    return s.mode === 'measured' && s.irf ? s.irf : this.irfCurve(all);
+  }
+
   /** IRF shape as used by the model at these parameters (fractions per channel), for display. */
   irfCurve(all: Float64Array): Float64Array {
     const s = this.setup;
@@ -233,17 +242,15 @@ export class DecayModel {
       const os = wantShift ? freeRow[L.shift] * nFit - i0 : 0;
       if (wantShift) jac!.fill(0, os + i0, os + i1);
       const irfShifted = this.irfShifted;
+      // Scattered excitation light has the excitation wavelength, at which the IRF was measured: it
+      // keeps the IRF's own timing, while the shift (the colour shift of the emission) moves only
+      // the fluorescence.
       if (L.scatter >= 0) {
         const c = all[L.scatter] * s.scatterScale;
-        for (let i = 0; i < n; i++) full[i] += c * irfShifted[i];
+        for (let i = 0; i < n; i++) full[i] += c * irf[i];
         if (jac && freeRow[L.scatter] >= 0) {
           const o = freeRow[L.scatter] * nFit - i0;
-          for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * irfShifted[i];
-        }
-        if (wantShift) {
-          const k = c / dt;
-          const dIrf = this.dIrf;
-          for (let i = i0; i < i1; i++) jac![os + i] += k * dIrf[i];
+          for (let i = i0; i < i1; i++) jac[o + i] = s.scatterScale * irf[i];
         }
       }
       const basis = this.basis;

@@ -130,7 +130,7 @@ export function gridStarts(
   const M = binCount(bins);
   const fixedCount = opts.fixedTauNs.filter((t) => t > 0).length;
   const bgCol = opts.fixedBackground === null ? grid.length + fixedCount : -1;
-  const irfCurve = L.scatter >= 0 ? model.irfCurve(base) : null;
+  const irfCurve = L.scatter >= 0 ? model.scatterCurve(base) : null;
   const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
   const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
   const flat = scratch(0, C * M);
