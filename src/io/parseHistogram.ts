@@ -327,7 +327,12 @@ function readUniformAxis(
   const { source } = table;
   const n = table.rowCount;
   const t = parseColumnNumbers(table, index, 'a time');
+  let minStep = Infinity;
+  let maxStep = 0;
   for (let i = 1; i < n; i++) {
+    const step = t[i] - t[i - 1];
+    if (step < minStep) minStep = step;
+    if (step > maxStep) maxStep = step;
     if (!(t[i] > t[i - 1])) {
       // Rows are asked for only here and below: a table read by the fast path makes them on demand.
       const rows = table.rows;
@@ -337,6 +342,10 @@ function readUniformAxis(
       );
     }
   }
+  const stepNs = ((t[n - 1] - t[0]) / (n - 1)) * nsPerUnit;
+  // When the widest and narrowest steps are within 0.1 % of the narrowest, every step is within
+  // 0.1 % of the median (which lies between them), and the median need not be found.
+  if (maxStep - minStep <= AXIS_TOLERANCE * minStep) return { startNs: t[0] * nsPerUnit, stepNs };
   const steps = new Float64Array(n - 1);
   for (let i = 1; i < n; i++) steps[i - 1] = t[i] - t[i - 1];
   const median = kthSmallest(steps, (n - 2) >> 1);
@@ -354,7 +363,6 @@ function readUniformAxis(
       );
     }
   }
-  const stepNs = ((t[n - 1] - t[0]) / (n - 1)) * nsPerUnit;
   return { startNs: t[0] * nsPerUnit, stepNs };
 }
 
