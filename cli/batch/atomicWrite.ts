@@ -6,29 +6,56 @@ export function temporaryName(path: string): string {
 }
 
 /**
- * Writes a file so that it is either absent, the old version or the complete new one, never a
+ * A file written so that it is either absent, the old version or the complete new one, never a
  * fragment: the chunks go to a temporary file in the same directory (rename does not cross file
- * systems), which is flushed to disk and then renamed over the target. On any error the temporary
- * file is removed and the error rethrown.
+ * systems), which `commit` flushes to disk and renames over the target; `abort` removes it.
+ */
+export class AtomicFile {
+  private fd: number;
+  readonly temporaryPath: string;
+
+  constructor(readonly path: string) {
+    this.temporaryPath = temporaryName(path);
+    this.fd = openSync(this.temporaryPath, 'w');
+  }
+
+  write(chunk: string | Uint8Array): void {
+    writeSync(this.fd, typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
+  }
+
+  commit(): void {
+    fsyncSync(this.fd);
+    closeSync(this.fd);
+    this.fd = -1;
+    renameSync(this.temporaryPath, this.path);
+  }
+
+  /** Removes the temporary file (after an error); the target is left as it was. */
+  abort(): void {
+    if (this.fd !== -1) {
+      try {
+        closeSync(this.fd);
+      } catch {
+        // already closed
+      }
+      this.fd = -1;
+    }
+    rmSync(this.temporaryPath, { force: true });
+  }
+}
+
+/**
+ * Writes a file atomically (see `AtomicFile`). On any error the temporary file is removed and the
+ * error rethrown.
  */
 export function writeFileAtomic(path: string, chunks: string | Iterable<string | Uint8Array>): void {
-  const tmp = temporaryName(path);
-  const fd = openSync(tmp, 'w');
+  const file = new AtomicFile(path);
   try {
-    if (typeof chunks === 'string') writeSync(fd, chunks);
-    else
-      for (const chunk of chunks)
-        writeSync(fd, typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
-    fsyncSync(fd);
-    closeSync(fd);
+    if (typeof chunks === 'string') file.write(chunks);
+    else for (const chunk of chunks) file.write(chunk);
+    file.commit();
   } catch (err) {
-    try {
-      closeSync(fd);
-    } catch {
-      // already closed
-    }
-    rmSync(tmp, { force: true });
+    file.abort();
     throw err;
   }
-  renameSync(tmp, path);
 }

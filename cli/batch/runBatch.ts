@@ -22,6 +22,7 @@ import { packageVersion } from '../version.js';
 import { Journal, readJournal } from './journal.js';
 import { siblingModule, WorkerPool } from './pool.js';
 import { ProgressBar } from './progress.js';
+import { ResultsJsonStream } from './resultsJsonStream.js';
 import { reportWriter } from './report.js';
 import {
   briefOf,
@@ -237,6 +238,13 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   const nToRun = toRun.length;
 
   const journal = new Journal(join(outDir, JOURNAL_NAME), { append: options.resume === true });
+  // results.json is written as the samples arrive, in manifest order, so that little is left to do
+  // once the last one is in.
+  const resultsJson = new ResultsJsonStream(join(outDir, 'results.json'), [
+    ...entries.map((e) => e.brief),
+    ...toRun.map((p) => ({ sample: p.settings.sample, manifestRow: p.settings.manifestRow })),
+  ]);
+  for (const e of entries) resultsJson.add(e);
   // The report's curves blocks wait on disk, not in memory, until report.html is written; the file is
   // scratch (named like a temporary, so a killed run's copy is cleared by the next run).
   const wantReport = options.report !== false;
@@ -261,12 +269,17 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   try {
     const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
       const at = typeof json === 'string' ? journal.append(json) : journal.appendLine(json);
-      const entry: OutputEntry = { brief, json: () => journal.read(at), bytes: () => journal.readBytes(at) };
+      const entry: OutputEntry = {
+        brief,
+        json: () => journal.read(at),
+        bytes: () => journal.readBytesTransient(at),
+      };
       if (reportCurves && curvesSpool) {
         const c = curvesSpool.appendLine(reportCurves);
-        entry.reportCurves = () => curvesSpool.readBytes(c);
+        entry.reportCurves = () => curvesSpool.readBytesTransient(c);
       }
       entries.push(entry);
+      resultsJson.add(entry, typeof json === 'string' ? undefined : json);
       done++;
       if (brief.status === 'failed') failedNow++;
     };
@@ -285,6 +298,9 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
         progress.update(done, failedNow);
       },
     );
+  } catch (err) {
+    resultsJson.abort();
+    throw err;
   } finally {
     progress.finish();
     await pool.close();
@@ -310,7 +326,11 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     writeBatchOutputs(outDir, entries, series, {
       title,
       writeReport: wantReport ? reportWriter(outDir, title) : undefined,
+      resultsJson,
     });
+  } catch (err) {
+    resultsJson.abort();
+    throw err;
   } finally {
     curvesSpool?.remove();
   }

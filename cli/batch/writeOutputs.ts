@@ -5,6 +5,7 @@ import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shar
 import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
 import { writeFileAtomic } from './atomicWrite.js';
+import { resultsJsonChunks, type ResultsJsonStream } from './resultsJsonStream.js';
 
 /** The files a batch leaves in its output directory. */
 export const OUTPUT_FILES = [
@@ -20,9 +21,12 @@ export const OUTPUT_FILES = [
 export interface OutputEntry {
   brief: SampleResult;
   json: () => string;
-  /** The same JSON as UTF-8 bytes, when they can be had without encoding (straight from the journal). */
+  /**
+   * The same JSON as UTF-8 bytes, when they can be had without encoding (straight from the journal),
+   * valid until the next call of any entry's `bytes` (they are copied into a file at once).
+   */
   bytes?: () => Uint8Array;
-  /** Its curves block for report.html, when its worker made one (see `reportCurvesOf`). */
+  /** Its curves block for report.html, when its worker made one (see `reportCurvesOf`); as `bytes`. */
   reportCurves?: () => Uint8Array;
 }
 
@@ -42,18 +46,24 @@ export function removeStaleTemporaries(dir: string): void {
 
 /**
  * Writes results.json (streamed one sample at a time, so a large batch never sits in memory as one
- * string), results.csv, summary.md, errors.log and, when there are series, series.json; each one
+ * string; or completed, when the batch wrote it as it ran), results.csv, summary.md, errors.log and, when there are series, series.json; each one
  * atomically. Samples appear in manifest order.
  */
 export function writeBatchOutputs(
   dir: string,
   entries: OutputEntry[],
   series: SeriesResult[],
-  options: { title: string; writeReport?: (entries: OutputEntry[], series: SeriesResult[]) => void },
+  options: {
+    title: string;
+    writeReport?: (entries: OutputEntry[], series: SeriesResult[]) => void;
+    /** results.json as the batch has been writing it while it ran, to complete. */
+    resultsJson?: ResultsJsonStream;
+  },
 ): void {
   const ordered = entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief));
   const briefs = ordered.map((e) => e.brief);
-  writeFileAtomic(join(dir, 'results.json'), resultsJsonChunks(ordered));
+  if (options.resultsJson) options.resultsJson.finish(ordered);
+  else writeFileAtomic(join(dir, 'results.json'), resultsJsonChunks(ordered));
   writeFileAtomic(join(dir, 'results.csv'), formatResultsCsv(briefs));
   writeFileAtomic(join(dir, 'summary.md'), formatSummaryMarkdown(briefs, series, options.title));
   writeFileAtomic(join(dir, 'errors.log'), formatErrorsLog(briefs));
@@ -64,16 +74,6 @@ export function writeBatchOutputs(
     );
   else rmSync(join(dir, 'series.json'), { force: true });
   options.writeReport?.(ordered, series);
-}
-
-function* resultsJsonChunks(entries: OutputEntry[]): Generator<string | Uint8Array> {
-  yield '[\n';
-  for (let k = 0; k < entries.length; k++) {
-    if (k) yield ',\n';
-    const e = entries[k];
-    yield e.bytes ? e.bytes() : e.json();
-  }
-  yield '\n]\n';
 }
 
 /**

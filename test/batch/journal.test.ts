@@ -49,6 +49,24 @@ describe('journal', () => {
     expect([...readJournal(path)].map((l) => (l.value as { sample: string }).sample)).toEqual(['a', 'b']);
   });
 
+  it('flushes to disk in the background while appends go on, and closes while a flush is running', async () => {
+    const path = join(tempDir(), 'j.ndjson');
+    const j = new Journal(path, { append: false, syncEveryMs: 0 });
+    const at = Array.from({ length: 50 }, (_, k) => j.append(JSON.stringify({ sample: `s${k}` })));
+    expect(new TextDecoder().decode(j.readBytesTransient(at[7]))).toBe('{"sample":"s7"}');
+    // The scratch buffer is reused: a second read replaces the first.
+    expect(new TextDecoder().decode(j.readBytesTransient(at[42]))).toBe('{"sample":"s42"}');
+    j.close();
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    expect([...readJournal(path)].length).toBe(50);
+    // Appending to it again starts after the last line.
+    const again = new Journal(path, { append: true });
+    const next = again.append('{"sample":"s50"}');
+    expect(again.read(next)).toBe('{"sample":"s50"}');
+    again.close();
+    expect([...readJournal(path)].length).toBe(51);
+  });
+
   it('ignores a torn last line, as a kill during a write leaves it', () => {
     const path = join(tempDir(), 'j.ndjson');
     writeFileSync(path, '{"sample":"a"}\n{"sample":"b"}\n{"sample":"c","fit":{"tau');

@@ -1,0 +1,124 @@
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterEach, describe, expect, it } from 'vitest';
+import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
+import { Journal } from '../../cli/batch/journal.js';
+import { ResultsJsonStream, resultsJsonChunks } from '../../cli/batch/resultsJsonStream.js';
+import type { OutputEntry } from '../../cli/batch/writeOutputs.js';
+import type { SampleResult } from '../../shared/schema.js';
+import { byManifestOrder } from '../../src/batch/merge.js';
+
+const dirs: string[] = [];
+function tempDir(): string {
+  const d = mkdtempSync(join(tmpdir(), 'lumirate-results-stream-'));
+  dirs.push(d);
+  return d;
+}
+afterEach(() => {
+  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
+});
+
+const sample = (name: string, row: number) =>
+  ({ sample: name, manifestRow: row, status: 'ok', x: `é${row}` }) as unknown as SampleResult;
+
+/** Entries as a batch records them: each line in the journal, its bytes handed over on arrival. */
+function arrivals(dir: string, results: SampleResult[]) {
+  const journal = new Journal(join(dir, '.journal'), { append: false, syncEveryMs: Infinity });
+  return results.map((r) => {
+    const line = new TextEncoder().encode(JSON.stringify(r) + '\n');
+    const at = journal.appendLine(line);
+    const entry: OutputEntry = {
+      brief: r,
+      json: () => journal.read(at),
+      bytes: () => journal.readBytesTransient(at),
+    };
+    return { entry, line };
+  });
+}
+
+/** What results.json holds when written from all entries at the end. */
+function writtenWhole(dir: string, entries: OutputEntry[]): string {
+  const path = join(dir, 'whole.json');
+  writeFileAtomic(path, resultsJsonChunks(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief))));
+  return readFileSync(path, 'utf8');
+}
+
+describe('ResultsJsonStream', () => {
+  const results = [sample('a', 1), sample('b', 2), sample('c', 3), sample('d', 4), sample('e', 5)];
+
+  it('writes samples arriving out of order in manifest order, as the whole-file writer does', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results);
+    const got = arrivals(dir, [results[1], results[0], results[3], results[4], results[2]]);
+    for (const { entry, line } of got) stream.add(entry, line);
+    const entries = got.map((g) => g.entry);
+    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    const text = readFileSync(path, 'utf8');
+    expect(text).toBe(writtenWhole(dir, entries));
+    expect((JSON.parse(text) as SampleResult[]).map((r) => r.sample)).toEqual(['a', 'b', 'c', 'd', 'e']);
+  });
+
+  it('writes nothing under the final name until it finishes', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results);
+    const got = arrivals(dir, results);
+    for (const { entry, line } of got) stream.add(entry, line);
+    expect(existsSync(path)).toBe(false);
+    stream.abort();
+    expect(readdirSync(dir)).toEqual(['.journal']);
+  });
+
+  it('reads early results back from the journal when holding them would pass its memory bound', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results, 0);
+    const got = arrivals(dir, [results[4], results[3], results[2], results[1], results[0]]);
+    for (const { entry, line } of got) stream.add(entry, line);
+    const entries = got.map((g) => g.entry);
+    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, entries));
+  });
+
+  it('leaves out the samples of a stopped batch that never arrived', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results);
+    const got = arrivals(dir, [results[0], results[2], results[4]]);
+    for (const { entry, line } of got) stream.add(entry, line);
+    const entries = got.map((g) => g.entry);
+    stream.finish(entries);
+    expect((JSON.parse(readFileSync(path, 'utf8')) as SampleResult[]).map((r) => r.sample)).toEqual([
+      'a',
+      'c',
+      'e',
+    ]);
+    expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, entries));
+  });
+
+  it('falls back to writing the whole file when a sample arrives that was not announced', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results.slice(0, 2));
+    const got = arrivals(dir, [results[0], sample('zz', 0), results[1]]);
+    for (const { entry, line } of got) stream.add(entry, line);
+    const entries = got.map((g) => g.entry);
+    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    expect((JSON.parse(readFileSync(path, 'utf8')) as SampleResult[]).map((r) => r.sample)).toEqual([
+      'zz',
+      'a',
+      'b',
+    ]);
+    expect(readdirSync(dir).sort()).toEqual(['.journal', 'results.json']);
+  });
+
+  it('writes an empty batch as an empty array', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    new ResultsJsonStream(path, []).finish([]);
+    expect(JSON.parse(readFileSync(path, 'utf8'))).toEqual([]);
+    expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, []));
+  });
+});
