@@ -5,10 +5,11 @@
  * of the autocorrelation is the power spectrum).
  *
  * The sequence is zero-padded to a power of two L ≥ n, and the few products that the circular
- * correlation wraps around into the first maxLag lags are subtracted. Both real transforms of length L run as complex transforms of
- * length L/2 on the even and odd samples packed as real and imaginary parts (the usual split-radix
- * packing, e.g. Press et al., Numerical Recipes, §12.3). Rounding error is of order
- * ε·log₂L·Σxᵢ², far below what the autocorrelation is read for.
+ * correlation wraps around into the first maxLag lags are subtracted. Both real transforms of
+ * length L run as complex transforms of length L/2 on the even and odd samples packed as real and
+ * imaginary parts (the textbook packing of a real transform, as in Numerical Recipes' "FFT of real
+ * functions"). Rounding error is of order ε·log₂L·Σxᵢ², far below what the autocorrelation is
+ * read for.
  */
 
 interface Tables {
