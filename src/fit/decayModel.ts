@@ -3,10 +3,13 @@ import {
   binMeans,
   exponentialBasis,
   exponentialBasisBinMeans,
-  irfSlopes,
+  irfShape,
+  shiftedSpan,
   shiftIrf,
   tailBasis,
   type ChannelBins,
+  type ChannelSpan,
+  type IrfShape,
 } from '../model/reconvolve.js';
 import { emgBasis, gaussianIrfFractions } from '../model/gaussianIrf.js';
 
@@ -93,13 +96,13 @@ const FD_LN_TAU = 1e-5;
 const FD_REL = 1e-5;
 
 /**
- * The IRF's slopes (see `irfSlopes`) by IRF array: the fitter's IRF arrays are made once per IRF and
- * decay axis and never written to, and a batch builds one model per decay from the same one.
+ * The IRF's slopes and span (see `irfShape`) by IRF array: the fitter's IRF arrays are made once per
+ * IRF and decay axis and never written to, and a batch builds one model per decay from the same one.
  */
-const slopesCache = new WeakMap<Float64Array, Float64Array>();
-function slopesOf(irf: Float64Array): Float64Array {
-  let d = slopesCache.get(irf);
-  if (!d) slopesCache.set(irf, (d = irfSlopes(irf)));
+const shapeCache = new WeakMap<Float64Array, IrfShape>();
+function shapeOf(irf: Float64Array): IrfShape {
+  let d = shapeCache.get(irf);
+  if (!d) shapeCache.set(irf, (d = irfShape(irf)));
   return d;
 }
 
@@ -119,7 +122,9 @@ export class DecayModel {
   private readonly irfShifted: Float64Array;
   private readonly dIrf: Float64Array;
   private work: Float64Array | null = null;
-  private readonly slopes: Float64Array | null;
+  private readonly shape: IrfShape | null;
+  /** Non-zero span of `irfShifted` (and of `dIrf`) after the last shift. */
+  private readonly span: ChannelSpan = { first: 0, end: 0 };
 
   /**
    * `sharedScratch`: take the work arrays from a pool kept between models of the same length instead
@@ -137,7 +142,7 @@ export class DecayModel {
     const pool = sharedScratch ? scratchPool(n) : null;
     [this.basis, this.dBasis, this.dShiftBasis, this.irfShifted, this.dIrf] =
       pool ?? Array.from({ length: 5 }, () => new Float64Array(n));
-    this.slopes = setup.irf ? slopesOf(setup.irf) : null;
+    this.shape = setup.irf ? shapeOf(setup.irf) : null;
   }
 
   /**
@@ -154,7 +159,7 @@ export class DecayModel {
     const s = this.setup;
     const out = new Float64Array(this.n);
     if (s.mode === 'measured' && s.irf)
-      shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, out, null, this.slopes);
+      shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, out, null, this.shape);
     else if (s.mode === 'gaussian')
       gaussianIrfFractions(
         this.n,
@@ -167,6 +172,20 @@ export class DecayModel {
     return out;
   }
 
+  /** The measured IRF shifted into `irfShifted` (its derivative into `dIrf` when asked), noting its span. */
+  private shiftMeasured(all: Float64Array, withDerivative: boolean): void {
+    const shift = all[this.layout.shift] / this.setup.binWidthNs;
+    const shape = this.shape as IrfShape;
+    shiftIrf(
+      this.setup.irf as Float64Array,
+      shift,
+      this.irfShifted,
+      withDerivative ? this.dIrf : null,
+      shape,
+    );
+    shiftedSpan(shape, shift, this.n, this.span);
+  }
+
   /**
    * Basis curve of one lifetime at the IRF settings in `all` (full axis), into `out`. `sameIrf`: the
    * IRF parameters are those of the previous call, so the shifted IRF is reused.
@@ -174,9 +193,8 @@ export class DecayModel {
   basisCurve(all: Float64Array, tauNs: number, out: Float64Array, sameIrf = false): void {
     const s = this.setup;
     if (s.mode === 'measured' && s.irf) {
-      if (!sameIrf)
-        shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null, this.slopes);
-      exponentialBasis(this.irfShifted, s.binWidthNs, tauNs, s.periodNs, out, null, null, null);
+      if (!sameIrf) this.shiftMeasured(all, false);
+      exponentialBasis(this.irfShifted, s.binWidthNs, tauNs, s.periodNs, out, null, null, null, this.span);
     } else if (s.mode === 'gaussian') {
       emgBasis(
         this.n,
@@ -207,9 +225,17 @@ export class DecayModel {
   ): void {
     const s = this.setup;
     if (s.mode === 'measured' && s.irf && !(s.periodNs !== null && s.periodNs > 0)) {
-      if (!sameIrf)
-        shiftIrf(s.irf, all[this.layout.shift] / s.binWidthNs, this.irfShifted, null, this.slopes);
-      exponentialBasisBinMeans(this.irfShifted, s.binWidthNs, tauNs, bins, out, offset, this.basis);
+      if (!sameIrf) this.shiftMeasured(all, false);
+      exponentialBasisBinMeans(
+        this.irfShifted,
+        s.binWidthNs,
+        tauNs,
+        bins,
+        out,
+        offset,
+        this.basis,
+        this.span,
+      );
       return;
     }
     this.basisCurve(all, tauNs, this.basis, sameIrf);
@@ -237,7 +263,7 @@ export class DecayModel {
     if (s.mode === 'measured') {
       const irf = s.irf as Float64Array;
       const wantShift = jac !== null && freeRow[L.shift] >= 0;
-      shiftIrf(irf, all[L.shift] / dt, this.irfShifted, wantShift ? this.dIrf : null, this.slopes);
+      this.shiftMeasured(all, wantShift);
       // The shift row (per ns) accumulates straight into the Jacobian: Σ coefficient/Δ · ∂curve/∂s.
       const os = wantShift ? freeRow[L.shift] * nFit - i0 : 0;
       if (wantShift) jac!.fill(0, os + i0, os + i1);
@@ -269,6 +295,7 @@ export class DecayModel {
           wantTau ? dBasis : null,
           wantShift ? this.dIrf : null,
           wantShift ? dShiftBasis : null,
+          this.span,
         );
         for (let i = 0; i < i0; i++) full[i] += a * basis[i];
         for (let i = i1; i < n; i++) full[i] += a * basis[i];

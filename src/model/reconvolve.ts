@@ -248,10 +248,48 @@ function slopeAt(irf: Float64Array, j: number): number {
   return d > 2 * q ? 2 * q : d < -2 * q ? -2 * q : d;
 }
 
+/** Channels [first, end) outside which a curve (and what goes with it) is 0. */
+export interface ChannelSpan {
+  first: number;
+  end: number;
+}
+
+/** What repeated shifts of one IRF need: its slopes, and the span outside which both are 0. */
+export interface IrfShape extends ChannelSpan {
+  slopes: Float64Array;
+}
+
+/** The IRF's limited slopes (see `irfSlopes`) and non-zero span, for repeated shifts of one IRF. */
+export function irfShape(irf: Float64Array): IrfShape {
+  let end = irf.length;
+  while (end > 0 && irf[end - 1] === 0) end--;
+  let first = 0;
+  while (first < end && irf[first] === 0) first++;
+  // A slope is limited to twice its channel's value, so it is 0 wherever the IRF is.
+  return { slopes: irfSlopes(irf), first, end };
+}
+
+/**
+ * The span of `shiftIrf`'s output (and of its derivative) for an IRF of this shape, into `out`:
+ * channel k draws on IRF channels k − m and k − m − 1, m = ⌊shift⌋.
+ */
+export function shiftedSpan(
+  shape: ChannelSpan,
+  shiftChannels: number,
+  n: number,
+  out: ChannelSpan,
+): ChannelSpan {
+  const m = Math.floor(shiftChannels);
+  out.first = Math.min(Math.max(shape.first + m, 0), n);
+  out.end = Math.max(Math.min(shape.end + m + 1, n), out.first);
+  return out;
+}
+
 /**
  * IRF moved later by `shiftChannels` (may be negative, need not be whole), written into `out`; when
  * `dOut` is given it receives ∂out/∂shift per channel of shift. Channels moved past either end are lost.
- * `slopes` (from `irfSlopes`) saves recomputing the IRF's slopes when one IRF is shifted many times.
+ * `shape` (from `irfShape`) saves recomputing the IRF's slopes and span when one IRF is shifted many
+ * times; only the channels the IRF can reach are computed, the rest set to 0.
  *
  * The piecewise-linear IRF of the module comment is moved by s = (m + f) channels and integrated over
  * each channel: q′ₖ = (1 − f)·qₖ₋ₘ + f·qₖ₋ₘ₋₁ + ½f(1 − f)·(dₖ₋ₘ₋₁ − dₖ₋ₘ). Plain linear
@@ -263,31 +301,23 @@ export function shiftIrf(
   shiftChannels: number,
   out: Float64Array,
   dOut: Float64Array | null,
-  slopes: Float64Array | null = null,
+  shape: IrfShape | null = null,
 ): void {
-  shiftWithSlopes(irf, slopes ?? irfSlopes(irf), shiftChannels, out, dOut);
-}
-
-/** Limited slopes dₖ of every channel (see the module comment), for repeated shifts of one IRF. */
-export function irfSlopes(irf: Float64Array): Float64Array {
-  const d = new Float64Array(irf.length);
-  for (let j = 0; j < irf.length; j++) d[j] = slopeAt(irf, j);
-  return d;
-}
-
-function shiftWithSlopes(
-  irf: Float64Array,
-  slopes: Float64Array,
-  shiftChannels: number,
-  out: Float64Array,
-  dOut: Float64Array | null,
-): void {
+  const sh = shape ?? irfShape(irf);
+  const slopes = sh.slopes;
   const n = irf.length;
   const m = Math.floor(shiftChannels);
   const f = shiftChannels - m;
   const c = 0.5 * f * (1 - f);
   const dc = 0.5 * (1 - 2 * f);
-  for (let k = 0; k < n; k++) {
+  const span = shiftedSpan(sh, shiftChannels, n, { first: 0, end: 0 });
+  out.fill(0, 0, span.first);
+  out.fill(0, span.end, n);
+  if (dOut) {
+    dOut.fill(0, 0, span.first);
+    dOut.fill(0, span.end, n);
+  }
+  for (let k = span.first; k < span.end; k++) {
     const j0 = k - m;
     const j1 = j0 - 1;
     const in0 = j0 >= 0 && j0 < n;
@@ -300,11 +330,19 @@ function shiftWithSlopes(
   }
 }
 
+/** Limited slopes dₖ of every channel (see the module comment), for repeated shifts of one IRF. */
+export function irfSlopes(irf: Float64Array): Float64Array {
+  const d = new Float64Array(irf.length);
+  for (let j = 0; j < irf.length; j++) d[j] = slopeAt(irf, j);
+  return d;
+}
+
 /**
  * Channel-integrated reconvolution of `irf` (fractions per channel, already shifted) with e^{−t/τ}.
  * Writes the basis curve into `out` (counts per channel for unit amplitude) and, when given, its
  * derivative with respect to ln τ into `dLnTau`, and the basis run on `dIrf` (∂irf/∂shift) into
- * `dShift`. `periodNs` null or ≤ 0 means a single pulse. No allocation.
+ * `dShift`. `periodNs` null or ≤ 0 means a single pulse. `span`: channels outside which `irf` and
+ * `dIrf` are known to be 0 (see `shiftedSpan`), or null to find them. No allocation.
  */
 export function exponentialBasis(
   irf: Float64Array,
@@ -315,6 +353,7 @@ export function exponentialBasis(
   dLnTau: Float64Array | null,
   dIrf: Float64Array | null,
   dShift: Float64Array | null,
+  span: ChannelSpan | null = null,
 ): void {
   const n = irf.length;
   const h = binWidthNs / tauNs;
@@ -338,9 +377,10 @@ export function exponentialBasis(
   // recursion is a pure exponential, run below with the same arithmetic minus the zero terms (so
   // the values are identical). A measured IRF usually ends a few hundred channels into the axis.
   // Before its first non-zero channel everything is 0.
-  let end = n;
+  // `span`, when known, bounds the non-zero channels and saves searching the whole axis for them.
+  let end = span ? Math.min(span.end, n) : n;
   while (end > 0 && irf[end - 1] === 0 && (!wantShift || (dIrf as Float64Array)[end - 1] === 0)) end--;
-  let start = 0;
+  let start = span ? Math.min(Math.max(span.first, 0), end) : 0;
   while (start < end && irf[start] === 0 && (!wantShift || (dIrf as Float64Array)[start] === 0)) start++;
   out.fill(0, 0, start);
   if (dLnTau) dLnTau.fill(0, 0, start);
@@ -504,7 +544,7 @@ export function binMeans(
  * e the curve is geometric, cₑ·x^(i − e) with x = e^{−Δ/τ}, so only channels 0 … e are run one by
  * one and the bins beyond are summed in closed form: the work is the IRF's support plus one step per
  * bin instead of every channel (the start-value search ranks a dozen lifetimes this way). `work`: at
- * least as long as `irf`.
+ * least as long as `irf`; `span` as for `exponentialBasis`.
  */
 export function exponentialBasisBinMeans(
   irf: Float64Array,
@@ -514,14 +554,25 @@ export function exponentialBasisBinMeans(
   out: Float64Array,
   offset: number,
   work: Float64Array,
+  span: ChannelSpan | null = null,
 ): void {
   const n = irf.length;
-  let end = n;
+  let end = span ? Math.min(span.end, n) : n;
   while (end > 0 && irf[end - 1] === 0) end--;
   // Channels 0 … e, e = end (the first zero after the support, where the curve is cₑ = K·S), run as
   // the full basis would run them; a head that ends in a zero gives the same values there.
   const head = Math.min(end + 1, n);
-  exponentialBasis(irf.subarray(0, head), binWidthNs, tauNs, null, work.subarray(0, head), null, null, null);
+  exponentialBasis(
+    irf.subarray(0, head),
+    binWidthNs,
+    tauNs,
+    null,
+    work.subarray(0, head),
+    null,
+    null,
+    null,
+    span ? { first: span.first, end: head } : null,
+  );
   const h = binWidthNs / tauNs;
   const last = work[head - 1];
   // Σ_{i=a}^{b−1} x^(i − e) over a full bin = x^(a − e)·(1 − x^w)/(1 − x), by expm1 for long τ.

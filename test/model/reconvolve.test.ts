@@ -159,6 +159,36 @@ describe('shiftIrf', () => {
       ),
     ).toBeLessThan(1e-12);
   });
+
+  it('computes only the channels the IRF reaches and zeroes the rest, as the formula over every channel', () => {
+    // Reference: q′ₖ = (1 − f)·qₖ₋ₘ + f·qₖ₋ₘ₋₁ + ½f(1 − f)·(dₖ₋ₘ₋₁ − dₖ₋ₘ) with the limited slopes
+    // dⱼ = clamp(½(qⱼ₊₁ − qⱼ₋₁), ±2qⱼ), evaluated at every channel (the module comment's definition).
+    const n = 300;
+    const q = new Float64Array(n);
+    for (let i = 100; i < 140; i++) q[i] = Math.exp(-(((i - 115) / 6) ** 2)) + (i % 3) * 0.01;
+    const at = (j: number) => (j >= 0 && j < n ? q[j] : 0);
+    const slope = (j: number) => {
+      if (j < 0 || j >= n) return 0;
+      const d = 0.5 * (at(j + 1) - at(j - 1));
+      return Math.max(-2 * q[j], Math.min(2 * q[j], d));
+    };
+    const out = new Float64Array(n);
+    const dOut = new Float64Array(n);
+    for (const shift of [0, 0.3, -0.7, 5.5, -99.25, 150.9, 170, -140.5, 400]) {
+      out.fill(NaN);
+      dOut.fill(NaN);
+      shiftIrf(q, shift, out, dOut);
+      const m = Math.floor(shift);
+      const f = shift - m;
+      for (let k = 0; k < n; k++) {
+        const a = at(k - m);
+        const b = at(k - m - 1);
+        const sd = slope(k - m - 1) - slope(k - m);
+        expect(out[k]).toBeCloseTo((1 - f) * a + f * b + 0.5 * f * (1 - f) * sd, 15);
+        expect(dOut[k]).toBeCloseTo(b - a + 0.5 * (1 - 2 * f) * sd, 15);
+      }
+    }
+  });
 });
 
 describe('tailBasis', () => {
