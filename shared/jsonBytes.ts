@@ -29,6 +29,8 @@ export class JsonBytes {
   length = 0;
   /** Digits of the number being written, least significant first. */
   private readonly digits = new Uint8Array(24);
+  /** Decimal exponent of the last value written to significant digits. */
+  private lastExponent = 0;
 
   constructor(initialBytes = 1 << 16) {
     this.buf = new Uint8Array(initialBytes);
@@ -67,6 +69,11 @@ export class JsonBytes {
     return this;
   }
 
+  /** What was written, as a view of the buffer (valid until the next write). */
+  view(): Uint8Array {
+    return this.buf.subarray(0, this.length);
+  }
+
   /** A copy of what was written, in a buffer of its own (which can be transferred to another thread). */
   take(): Uint8Array {
     return this.buf.slice(0, this.length);
@@ -102,12 +109,17 @@ export class JsonBytes {
     if (!Number.isFinite(v)) return this.ascii('null');
     if (v === 0) return this.byte(ZERO);
     const a = Math.abs(v);
-    let e = Math.floor(Math.log10(a));
-    // Near the ends of the double range 10^shift would overflow: such values go the slow way.
-    if (e > 290 || e < -290) return this.ascii(String(Number(v.toPrecision(digits))));
-    // log10 may land one off next to a power of ten.
-    if (a < pow10(e)) e--;
-    else if (a >= pow10(e + 1)) e++;
+    // The decimal exponent: neighbouring channels mostly share it, which spares a logarithm.
+    let e = this.lastExponent;
+    if (a < pow10(e) || a >= pow10(e + 1)) {
+      e = Math.floor(Math.log10(a));
+      // Near the ends of the double range 10^shift would overflow: such values go the slow way.
+      if (e > 290 || e < -290) return this.ascii(String(Number(v.toPrecision(digits))));
+      // log10 may land one off next to a power of ten.
+      if (a < pow10(e)) e--;
+      else if (a >= pow10(e + 1)) e++;
+      this.lastExponent = e;
+    }
     const shift = digits - 1 - e;
     let k = Math.round(shift >= 0 ? a * pow10(shift) : a / pow10(-shift));
     if (k >= POW10[digits]) {

@@ -43,13 +43,17 @@ export class ResultsJsonStream {
     this.file.write('[\n');
   }
 
-  /** A finished sample, with its JSON line (ending in a newline) when it is at hand. */
-  add(entry: OutputEntry, line?: Uint8Array): void {
-    if (this.unordered) return;
+  /**
+   * A finished sample, with its JSON line (ending in a newline) when it is at hand. Returns true when
+   * the line is kept for later (the caller must then leave its bytes alone), false when it was
+   * written or not needed.
+   */
+  add(entry: OutputEntry, line?: Uint8Array): boolean {
+    if (this.unordered) return false;
     const at = this.slotOf.get(entry.brief.sample);
     if (at === undefined || this.entries[at] || at < this.next) {
       this.unordered = true;
-      return;
+      return false;
     }
     this.entries[at] = entry;
     if (line && (at === this.next || this.heldBytes + line.length <= this.maxHeldBytes)) {
@@ -57,6 +61,7 @@ export class ResultsJsonStream {
       this.heldBytes += line.length;
     }
     while (this.next < this.entries.length && this.entries[this.next]) this.writeSlot(this.next++);
+    return this.held[at] !== undefined;
   }
 
   private writeSlot(i: number): void {

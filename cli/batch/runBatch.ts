@@ -267,7 +267,9 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     pool.stop();
   });
   try {
+    /** Records a finished sample; returns the buffers of its bytes that are no longer needed. */
     const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
+      const used: ArrayBuffer[] = [];
       const at = typeof json === 'string' ? journal.append(json) : journal.appendLine(json);
       const entry: OutputEntry = {
         brief,
@@ -278,16 +280,21 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
         const c = curvesSpool.appendLine(reportCurves);
         entry.reportCurves = () => curvesSpool.readBytesTransient(c);
       }
+      if (reportCurves) used.push(reportCurves.buffer as ArrayBuffer);
       entries.push(entry);
-      resultsJson.add(entry, typeof json === 'string' ? undefined : json);
+      const line = typeof json === 'string' ? undefined : json;
+      if (!resultsJson.add(entry, line) && line) used.push(line.buffer as ArrayBuffer);
       done++;
       if (brief.status === 'failed') failedNow++;
+      return used;
     };
     await pool.run(
       tasks,
       (reply) => {
-        for (const r of reply.results) record(r.json, r.brief, r.reportCurves);
+        // The worker writes its next replies into the buffers of this one.
+        const back = reply.results.flatMap((r) => record(r.json, r.brief, r.reportCurves));
         progress.update(done, failedNow);
+        return back;
       },
       // A sample that takes its worker down (out of memory …) fails alone; the batch goes on.
       (task, why) => {

@@ -23,6 +23,7 @@ import {
 } from '../../src/batch/runSample.js';
 import { InputError } from '../../src/errors.js';
 import { decodeText } from '../../src/io/decodeText.js';
+import type { RecycleMessage } from './pool.js';
 import {
   briefOf,
   type FileToRead,
@@ -110,20 +111,48 @@ function runTask(task: WorkTask): SampleResult[] {
 
 const out = new JsonBytes(1 << 18);
 
+/** Buffers the batch's thread has handed back after using a reply, to write the next ones into. */
+const spare: ArrayBuffer[] = [];
+const MAX_SPARE = 8;
+
+/**
+ * What `out` holds, with a newline, in a buffer that can be transferred: the smallest spare one that
+ * fits, else a new one with some room (the next sample's text is a little longer or shorter). A
+ * fresh buffer of 100 kB per reply cost more than writing the text into it.
+ */
+function lineToSend(): Uint8Array {
+  const n = out.length + 1;
+  let best = -1;
+  for (let k = 0; k < spare.length; k++)
+    if (spare[k].byteLength >= n && (best < 0 || spare[k].byteLength < spare[best].byteLength)) best = k;
+  const buffer = best >= 0 ? spare.splice(best, 1)[0] : new ArrayBuffer(n + (n >> 3));
+  const line = new Uint8Array(buffer, 0, n);
+  line.set(out.view());
+  line[n - 1] = 10;
+  return line;
+}
+
 /** The report's curves block of a result, as one UTF-8 line. */
 function reportCurves(r: SampleResult): Uint8Array | undefined {
   const c = r.fit?.curves;
   if (!setup.report || !c) return undefined;
-  return writePackedCurves(out.reset(), c).takeLine();
+  writePackedCurves(out.reset(), c);
+  return lineToSend();
 }
 
-parentPort!.on('message', (task: WorkTask) => {
-  const results = runTask(task).map(withoutCurves);
+parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
+  if ('recycle' in message) {
+    spare.push(...message.recycle);
+    if (spare.length > MAX_SPARE) spare.sort((a, b) => b.byteLength - a.byteLength).length = MAX_SPARE;
+    return;
+  }
+  const results = runTask(message).map(withoutCurves);
   const transfer: ArrayBuffer[] = [];
   const reply: WorkReply = {
-    id: task.id,
+    id: message.id,
     results: results.map((r) => {
-      const json = writeSampleResult(out.reset(), r).takeLine();
+      writeSampleResult(out.reset(), r);
+      const json = lineToSend();
       const curves = reportCurves(r);
       transfer.push(json.buffer as ArrayBuffer);
       if (curves) transfer.push(curves.buffer as ArrayBuffer);

@@ -11,7 +11,9 @@ describe('WorkerPool', () => {
     );
     const tasks = Array.from({ length: 40 }, (_, i) => ({ id: i, n: i }));
     const replies: { id: number; value: number; thread: number }[] = [];
-    await pool.run(tasks, (r) => replies.push(r));
+    await pool.run(tasks, (r) => {
+      replies.push(r);
+    });
     await pool.close();
     expect(replies.map((r) => r.id).sort((a, b) => a - b)).toEqual(tasks.map((t) => t.id));
     for (const r of replies) expect(r.value).toBe(r.id * r.id);
@@ -39,6 +41,24 @@ describe('WorkerPool', () => {
     await pool.close();
     expect(seen).toEqual([0, 1, 2]);
   });
+
+  it('hands the buffers a reply returns back to the worker that sent it', async () => {
+    const pool = new WorkerPool<
+      { id: number; n: number },
+      { id: number; buffer: ArrayBuffer; recycledBytes: number }
+    >(squareWorker, 1, undefined, 1);
+    const recycled: number[] = [];
+    await pool.run(
+      Array.from({ length: 5 }, (_, i) => ({ id: i, n: i })),
+      (r) => {
+        recycled.push(r.recycledBytes);
+        return [r.buffer];
+      },
+    );
+    await pool.close();
+    // One task in flight: each reply is sent after the buffer of the one before came back.
+    expect(recycled).toEqual([0, 8, 16, 24, 32]);
+  });
 });
 
 describe('WorkerPool with onLost', () => {
@@ -49,7 +69,9 @@ describe('WorkerPool with onLost', () => {
     const lost: { id: number; why: string }[] = [];
     await pool.run(
       tasks,
-      (r) => replies.push(r.id),
+      (r) => {
+        replies.push(r.id);
+      },
       (t, why) => lost.push({ id: t.id, why }),
     );
     await pool.close();
