@@ -1,6 +1,6 @@
 import { InputError } from '../errors.js';
 import type { Spectrum, SpectrumAxis, SpectrumImportReport } from './types.js';
-import { findColumn, parseCellNumber, readTextTable, type TextTable } from './textTable.js';
+import { cellNumber, findColumn, readTextTable, type TextTable } from './textTable.js';
 import { splitNameUnit } from './columnNames.js';
 import { metadataNumber } from './metadata.js';
 import { MAX_COUNTS } from './validate.js';
@@ -216,34 +216,28 @@ export function parseSpectrumText(text: string, options: SpectrumParseOptions): 
     }
   }
 
-  // Values.
-  const n = table.rows.length;
+  // Values. Rows (each cell's text and line) are asked for only where a message needs them: a table
+  // read by the fast path makes them on demand.
+  const n = table.rowCount;
   const x = new Float64Array(n);
   const y = new Float64Array(n);
   let negatives = 0;
   let firstNegative = 0;
+  const at = (i: number, j: number) => ({ file: source, line: table.rows[i].line, column: j + 1 });
   for (let i = 0; i < n; i++) {
-    const row = table.rows[i];
-    const xw = { file: source, line: row.line, column: axisIndex + 1 };
-    const yw = { file: source, line: row.line, column: yIndex + 1 };
-    x[i] = parseCellNumber(
-      row.cells[axisIndex],
-      table.decimalMark,
-      xw,
-      axis === 'nm' ? 'a wavelength' : 'a wavenumber',
-    );
+    x[i] = cellNumber(table, i, axisIndex, axis === 'nm' ? 'a wavelength' : 'a wavenumber');
     if (!(x[i] > 0))
       throw new InputError(
-        `${axis === 'nm' ? 'wavelength' : 'wavenumber'} ${row.cells[axisIndex].trim()} is not positive`,
-        xw,
+        `${axis === 'nm' ? 'wavelength' : 'wavenumber'} ${table.rows[i].cells[axisIndex].trim()} is not positive`,
+        at(i, axisIndex),
       );
-    y[i] = parseCellNumber(row.cells[yIndex], table.decimalMark, yw);
+    y[i] = cellNumber(table, i, yIndex);
     if (Math.abs(y[i]) > MAX_COUNTS)
       throw new InputError(
-        `${row.cells[yIndex].trim()} is beyond any plausible ${kind} value (|y| > 1e15)`,
-        yw,
+        `${table.rows[i].cells[yIndex].trim()} is beyond any plausible ${kind} value (|y| > 1e15)`,
+        at(i, yIndex),
       );
-    if (y[i] < 0 && negatives++ === 0) firstNegative = row.line;
+    if (y[i] < 0 && negatives++ === 0) firstNegative = i;
   }
   if (n < 2)
     throw new InputError('has only one data row; a spectrum needs at least two points', {
@@ -252,7 +246,7 @@ export function parseSpectrumText(text: string, options: SpectrumParseOptions): 
     });
   if (negatives > 0) {
     warnings.push(
-      `${negatives} negative ${kind} ${negatives === 1 ? 'value' : 'values'} (first on line ${firstNegative}), kept as they are (baseline noise?)`,
+      `${negatives} negative ${kind} ${negatives === 1 ? 'value' : 'values'} (first on line ${table.rows[firstNegative].line}), kept as they are (baseline noise?)`,
     );
   }
 
