@@ -189,6 +189,18 @@ describe('the fast path of the table reader', () => {
     );
   });
 
+  it('grows its columns when the rows outnumber the guess made from the first line', () => {
+    // The guess divides the text by the first line's length: a long first line and short ones after
+    // it make the columns double several times.
+    const rows = Array.from({ length: 300 }, (_, i) => `${i + 1},${(i * 7) % 13}`);
+    const text = `x,y\n0.000000000000000001,1000000000000000\n${rows.join('\n')}\n`;
+    const { fast } = expectSameTable(text);
+    const table = (fast as { value: TextTable }).value;
+    expect(table.numbers).toBeDefined();
+    expect(table.rowCount).toBe(301);
+    expect(Array.from(parseColumnNumbers(table, 0).subarray(299))).toEqual([299, 300]);
+  });
+
   it('leaves a file with an unusual line to the general reader, which reads it alike', () => {
     const cases = [
       'time_ns,counts\n0,1\n# late: metadata\n1,2\n', // a comment among the data
