@@ -54,6 +54,27 @@ export function tailLifetimeEstimate(
   return slope < 0 ? -binWidthNs / slope : NaN;
 }
 
+/**
+ * Every strictly ascending choice of k indices out of 0 … n − 1, in lexicographic order, packed k
+ * per choice (one empty choice when k = 0, as an empty array).
+ */
+function ascendingChoices(n: number, k: number): Int32Array {
+  const out: number[] = [];
+  const chosen = new Int32Array(k);
+  const pick = (from: number, depth: number) => {
+    if (depth === k) {
+      for (let j = 0; j < k; j++) out.push(chosen[j]);
+      return;
+    }
+    for (let g = from; g < n; g++) {
+      chosen[depth] = g;
+      pick(g + 1, depth + 1);
+    }
+  };
+  pick(0, 0);
+  return Int32Array.from(out);
+}
+
 /** Points (bins of the fit range) on which the lifetime grid is ranked. */
 const GRID_POINTS = 500;
 
@@ -168,16 +189,12 @@ export function gridStarts(
   // Gram matrix and projection of the data in one pass.
   weightedGram(flat, C, M, w, wy, gram, rhs, bgCol);
 
-  // Every ascending choice of grid lifetimes for the free slots.
-  const combos: number[][] = [];
-  const pick = (startAt: number, chosen: number[]) => {
-    if (chosen.length === freeSlots.length) {
-      combos.push(chosen.slice());
-      return;
-    }
-    for (let g = startAt; g < grid.length; g++) pick(g + 1, [...chosen, g]);
-  };
-  pick(0, []);
+  // Every ascending choice of grid lifetimes for the free slots, packed: combination c is
+  // combos[c·F … c·F + F − 1].
+  const F = freeSlots.length;
+  const combos = ascendingChoices(grid.length, F);
+  const comboCount = F > 0 ? combos.length / F : 1;
+  const comboAt = (c: number) => combos.subarray(c * F, c * F + F);
 
   const maxP = nc + 2;
   const A = new Float64Array(maxP * maxP);
@@ -222,33 +239,35 @@ export function gridStarts(
     return NaN;
   };
   // Column per component, then background and scatter.
-  const setColumns = (combo: number[]): number => {
-    let f = 0;
+  const setColumns = (c: number): number => {
+    let f = c * F;
     let K = 0;
-    for (let j = 0; j < nc; j++) cols[K++] = opts.fixedTauNs[j] > 0 ? fixedCol[j] : combo[f++];
+    for (let j = 0; j < nc; j++) cols[K++] = opts.fixedTauNs[j] > 0 ? fixedCol[j] : combos[f++];
     if (bgCol >= 0) cols[K++] = bgCol;
     if (scCol >= 0) cols[K++] = scCol;
     return K;
   };
-  const ranked: { combo: number[]; chi2: number }[] = [];
-  for (const combo of combos) {
-    const chi2 = solve(setColumns(combo));
-    if (!Number.isNaN(chi2)) ranked.push({ combo, chi2 });
+  const chi2s = new Float64Array(comboCount);
+  const order: number[] = [];
+  for (let c = 0; c < comboCount; c++) {
+    chi2s[c] = solve(setColumns(c));
+    if (!Number.isNaN(chi2s[c])) order.push(c);
   }
-  ranked.sort((p, q) => p.chi2 - q.chi2);
+  order.sort((p, q) => chi2s[p] - chi2s[q]);
   // Parameter vectors for the best few only: solved again, which is cheap.
   const results: StartCandidate[] = [];
   // The later starts serve when the first fit looks doubtful, so they must differ from it: a
   // combination whose every lifetime lies within one grid step of an earlier pick is passed over.
-  const picked: number[][] = [];
-  for (const r of ranked) {
+  const picked: number[] = [];
+  for (const c of order) {
     if (picked.length >= opts.keep) break;
-    const near = picked.some((q) => q.every((g, k) => Math.abs(g - r.combo[k]) <= 1));
-    if (!near) picked.push(r.combo);
+    const combo = comboAt(c);
+    const near = picked.some((q) => comboAt(q).every((g, k) => Math.abs(g - combo[k]) <= 1));
+    if (!near) picked.push(c);
   }
-  for (const combo of picked) {
-    const chi2 = ranked.find((r) => r.combo === combo)!.chi2;
-    const K = setColumns(combo);
+  for (const c of picked) {
+    const combo = comboAt(c);
+    const K = setColumns(c);
     solve(K);
     const params = Float64Array.from(base);
     let maxAmp = 0;
@@ -264,7 +283,7 @@ export function gridStarts(
     // impossible Poisson model); start it slightly above.
     if (bgCol >= 0) params[L.background] = Math.max(coef[nc], 1e-2);
     if (scCol >= 0) params[L.scatter] = Math.max(coef[K - 1], 0);
-    results.push({ params, chi2 });
+    results.push({ params, chi2: chi2s[c] });
   }
   return results;
 }
