@@ -147,11 +147,35 @@ function previousResults(outDir: string): Map<string, { text: string; value: Sam
 export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> {
   const version = packageVersion();
   const manifestPath = options.manifestPath;
-  const manifestDir = dirname(resolve(manifestPath));
   const manifest = parseManifest(readTextFile(manifestPath), { source: manifestPath });
   const settings = options.settingsPath
     ? parseSettings(readTextFile(options.settingsPath), { source: options.settingsPath })
     : EMPTY_SETTINGS;
+  // The worker threads load their modules while the rows are resolved and the files checked.
+  const setup: WorkerSetup = {
+    lumirateVersion: version,
+    curves: options.curves !== false,
+    report: options.report !== false && options.curves !== false,
+  };
+  const jobs = Math.max(1, options.jobs ?? availableParallelism());
+  const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
+  pool.prestart(manifest.rows.length);
+  try {
+    return await runWithPool(options, manifest, settings, version, pool);
+  } finally {
+    await pool.close();
+  }
+}
+
+async function runWithPool(
+  options: BatchRunOptions,
+  manifest: ReturnType<typeof parseManifest>,
+  settings: BatchSettings,
+  version: string,
+  pool: WorkerPool<WorkTask, WorkReply>,
+): Promise<BatchSummary> {
+  const manifestPath = options.manifestPath;
+  const manifestDir = dirname(resolve(manifestPath));
   const startedUtc = new Date().toISOString();
   const ctx: RunContext = { lumirateVersion: version, timeUtc: startedUtc };
 
@@ -252,13 +276,6 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     ? new Journal(join(outDir, `.report-curves.tmp-${process.pid}`), { append: false, syncEveryMs: Infinity })
     : null;
   const progress = ProgressBar.for(nToRun, options.quiet === true);
-  const jobs = Math.max(1, options.jobs ?? availableParallelism());
-  const setup: WorkerSetup = {
-    lumirateVersion: version,
-    curves: options.curves !== false,
-    report: wantReport && options.curves !== false,
-  };
-  const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
   let done = 0;
   let failedNow = 0;
   let interrupted = false;

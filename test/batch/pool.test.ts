@@ -42,6 +42,26 @@ describe('WorkerPool', () => {
     expect(seen).toEqual([0, 1, 2]);
   });
 
+  it('runs on threads started ahead, and closes those the run did not need', async () => {
+    const pool = new WorkerPool<{ id: number; n: number }, { id: number; thread: number }>(squareWorker, 3);
+    pool.prestart(2);
+    const threads = new Set<number>();
+    await pool.run(
+      Array.from({ length: 20 }, (_, i) => ({ id: i, n: i })),
+      (r) => {
+        threads.add(r.thread);
+      },
+    );
+    // Two started ahead, a third started by the run itself.
+    expect(threads.size).toBe(3);
+    await pool.close();
+    const idle = new WorkerPool(squareWorker, 2);
+    idle.prestart();
+    await idle.run([], () => {});
+    // Would leave the test process waiting for the threads if they were not ended.
+    await idle.close();
+  });
+
   it('hands the buffers a reply returns back to the worker that sent it', async () => {
     const pool = new WorkerPool<
       { id: number; n: number },
