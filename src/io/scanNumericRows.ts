@@ -40,19 +40,26 @@ export function scanDecimal(text: string, start: number, marks: number): number 
     negative = c === 45;
     c = text.charCodeAt(++i);
   }
+  // The whole part, then the fraction after a mark; the digit counts come from the positions.
   let mantissa = 0;
-  let digits = 0;
+  const wholeStart = i;
+  while (c >= 48 && c <= 57) {
+    mantissa = mantissa * 10 + (c - 48);
+    c = text.charCodeAt(++i);
+  }
+  let digits = i - wholeStart;
   let scale = 0;
   let mark = 0;
-  for (;;) {
-    if (c >= 48 && c <= 57) {
+  if ((c === 46 && (marks & POINT_MARK) !== 0) || (c === 44 && (marks & COMMA_MARK) !== 0)) {
+    mark = c;
+    const fractionStart = ++i;
+    c = text.charCodeAt(i);
+    while (c >= 48 && c <= 57) {
       mantissa = mantissa * 10 + (c - 48);
-      digits++;
-      if (mark !== 0) scale--;
-    } else if (mark === 0 && ((c === 46 && marks & POINT_MARK) || (c === 44 && marks & COMMA_MARK))) {
-      mark = c;
-    } else break;
-    c = text.charCodeAt(++i);
+      c = text.charCodeAt(++i);
+    }
+    scale = fractionStart - i;
+    digits -= scale;
   }
   scanMark = mark;
   if (digits === 0) {
