@@ -3,7 +3,7 @@ import { InputError } from '../errors.js';
 import { alignIrfToDecay } from '../io/checkBinWidthsAgree.js';
 import type { Histogram } from '../io/types.js';
 import { addBootstrap } from './bootstrap.js';
-import { fitModel } from './fitModel.js';
+import { fitModel, fitResolved } from './fitModel.js';
 import { resolveFitSetup } from './fitSetup.js';
 import type { FitOptions } from './options.js';
 import { addProfileIntervals } from './profile.js';
@@ -30,13 +30,17 @@ export function fitDecay(decay: Histogram, irfIn: Histogram | null, options: Fit
     });
   if (options.seed !== undefined && !(Number.isInteger(options.seed) && options.seed >= 0))
     throw new InputError(`the seed must be a whole number ≥ 0, got ${options.seed}`, { file: decay.source });
-  // Every other option is checked once here, before any fitting starts (the same checks run per fit).
-  resolveFitSetup(decay, irf, { ...options, components: components === 'auto' ? 1 : components });
+  // Every other option is checked once here, before any fitting starts (the same checks run per fit);
+  // a single model is then fitted on this very setup.
+  const setup = resolveFitSetup(decay, irf, {
+    ...options,
+    components: components === 'auto' ? 1 : components,
+  });
 
   let result =
     components === 'auto'
       ? selectComponents(decay, irf, options, fitModel)
-      : fitModel(decay, irf, { ...options, components });
+      : fitResolved(setup, decay, options.curves ?? true);
   if (options.profile) result = addProfileIntervals(result, decay, irf, options, fitModel);
   if (bootstrap > 0) result = addBootstrap(result, decay, irf, options, fitModel);
   if (irf && irfIn && irf !== irfIn) {

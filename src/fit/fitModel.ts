@@ -46,9 +46,12 @@ export function fitModel(
   irf: Histogram | null,
   options: FitOptions & { components: number },
 ): FitResult {
-  const setup = resolveFitSetup(decay, irf, options);
-  const fit = runFit(setup);
-  return buildResult(setup, fit, decay, options.curves ?? true);
+  return fitResolved(resolveFitSetup(decay, irf, options), decay, options.curves ?? true);
+}
+
+/** `fitModel` on a setup already resolved from `decay` (by `resolveFitSetup`). */
+export function fitResolved(setup: FitSetup, decay: Histogram, curves: boolean): FitResult {
+  return buildResult(setup, runFit(setup), decay, curves);
 }
 
 interface FitRun {
