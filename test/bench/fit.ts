@@ -44,7 +44,7 @@ const p90 = (a: number[]) => [...a].sort((x, y) => x - y)[Math.floor(0.9 * (a.le
 const mb = (b: number) => (b / 2 ** 20).toFixed(1);
 
 function timeFits(curves: boolean) {
-  for (let k = 0; k < 10; k++) fitModel(decays[k % DECAYS], sim.irf, { components: 2, curves }); // warm-up
+  for (let k = 0; k < 50; k++) fitModel(decays[k % DECAYS], sim.irf, { components: 2, curves }); // warm-up
   const wall: number[] = [];
   const cpu: number[] = [];
   const iterations: number[] = [];
@@ -97,8 +97,8 @@ console.log(
 );
 console.log(`machine speed now: 10⁶ multiply-adds in ${calibrate().toFixed(2)} ms (best of 20)`);
 for (const curves of [false, true]) {
-  // Best of three rounds of medians: other processes on a shared machine only ever add time.
-  const rounds = [timeFits(curves), timeFits(curves), timeFits(curves)];
+  // Best of five rounds of medians: other processes on a shared machine only ever add time.
+  const rounds = Array.from({ length: 5 }, () => timeFits(curves));
   const r = rounds.reduce((best, x) => (median(x.cpu) < median(best.cpu) ? x : best));
   console.log(
     `${curves ? 'full result with plotting curves' : 'fit only (curves off)           '}: ` +
