@@ -1,4 +1,5 @@
 import { closeSync, fsyncSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
+import { BackgroundFlush } from './backgroundFlush.js';
 
 /** The temporary name a file is written under before it is renamed into place. */
 export function temporaryName(path: string): string {
@@ -21,9 +22,22 @@ export class AtomicFile {
 
   write(chunk: string | Uint8Array): void {
     writeSync(this.fd, typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
+    this.flush?.due();
+  }
+
+  private flush: BackgroundFlush | null = null;
+
+  /**
+   * For a file written over a long time: flush what has been written to the disk in the background,
+   * at most every `everyMs`, so that the final flush in `commit` has little left to do.
+   */
+  flushWhileWriting(everyMs: number): this {
+    this.flush = new BackgroundFlush(this.temporaryPath, everyMs);
+    return this;
   }
 
   commit(): void {
+    this.flush?.close();
     fsyncSync(this.fd);
     closeSync(this.fd);
     this.fd = -1;
@@ -32,6 +46,7 @@ export class AtomicFile {
 
   /** Removes the temporary file (after an error); the target is left as it was. */
   abort(): void {
+    this.flush?.close();
     if (this.fd !== -1) {
       try {
         closeSync(this.fd);

@@ -1,7 +1,6 @@
 import {
   closeSync,
   existsSync,
-  fsync,
   fstatSync,
   fsyncSync,
   openSync,
@@ -10,6 +9,7 @@ import {
   rmSync,
   writeSync,
 } from 'node:fs';
+import { BackgroundFlush } from './backgroundFlush.js';
 
 /**
  * The batch journal: one JSON line per finished sample, appended as results arrive, so that a killed
@@ -18,13 +18,12 @@ import {
  * which is ignored. The data reaches the operating system at every append (so it survives the
  * process being killed); it is flushed to the disk itself at most every `syncEveryMs` and at close,
  * which bounds the loss on a power cut without paying a disk flush per sample. The periodic flushes
- * run in the background (a flush can take tens of milliseconds, during which the batch's thread
- * would otherwise leave the workers waiting for their next sample).
+ * run in the background (`BackgroundFlush`).
  */
 export class Journal {
   private fd: number;
   private offset: number;
-  private lastSync = Date.now();
+  private readonly flush: BackgroundFlush | null;
 
   /**
    * `syncEveryMs` (default 200) bounds the time between flushes to the disk; Infinity never flushes,
@@ -37,6 +36,7 @@ export class Journal {
     this.fd = openSync(path, options.append ? 'a' : 'w');
     this.offset = options.append ? fstatSync(this.fd).size : 0;
     this.syncEveryMs = options.syncEveryMs ?? 200;
+    this.flush = Number.isFinite(this.syncEveryMs) ? new BackgroundFlush(path, this.syncEveryMs) : null;
   }
 
   private readonly syncEveryMs: number;
@@ -55,25 +55,8 @@ export class Journal {
     writeSync(this.fd, line);
     const at = { offset: this.offset, length: line.length - 1 };
     this.offset += line.length;
-    const now = Date.now();
-    if (now - this.lastSync >= this.syncEveryMs) {
-      this.lastSync = now;
-      this.flushInBackground();
-    }
+    this.flush?.due();
     return at;
-  }
-
-  private flushing = false;
-  private closeReadFdAfterFlush = false;
-
-  /** Flushes to the disk on a thread of the pool, through the reading descriptor (fsync takes any). */
-  private flushInBackground(): void {
-    if (this.flushing) return;
-    this.flushing = true;
-    fsync(this.fdForRead(), () => {
-      this.flushing = false;
-      if (this.closeReadFdAfterFlush) this.closeReadFd();
-    });
   }
 
   /** Reads back an appended line's JSON text. */
@@ -106,21 +89,15 @@ export class Journal {
     return this.readFd;
   }
 
-  private closeReadFd(): void {
-    if (this.readFd !== -1) closeSync(this.readFd);
-    this.readFd = -1;
-    this.closeReadFdAfterFlush = false;
-  }
-
   close(): void {
+    this.flush?.close();
     if (this.fd !== -1) {
-      if (Number.isFinite(this.syncEveryMs)) fsyncSync(this.fd);
+      if (this.flush) fsyncSync(this.fd);
       closeSync(this.fd);
       this.fd = -1;
     }
-    // A background flush still holds the reading descriptor: it closes it when done.
-    if (this.flushing) this.closeReadFdAfterFlush = true;
-    else this.closeReadFd();
+    if (this.readFd !== -1) closeSync(this.readFd);
+    this.readFd = -1;
   }
 
   remove(): void {

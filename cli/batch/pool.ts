@@ -135,6 +135,8 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
 
   private onStop: (() => void) | null = null;
 
+  private closing: Promise<void> = Promise.resolve();
+
   /** Threads started ahead of `run`, still loading or waiting for it. */
   private started: Worker[] = [];
 
@@ -171,10 +173,13 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
   }
 
   /** Ends the workers after a finished run. */
-  async close(): Promise<void> {
+  close(): Promise<void> {
     this.stopped = true;
-    await Promise.all([...this.workers, ...this.started].map((w) => w.terminate()));
+    const ending = [...this.workers, ...this.started].map((w) => w.terminate());
     this.workers = [];
     this.started = [];
+    // A second call waits for the same threads.
+    this.closing = Promise.all([this.closing, ...ending]).then(() => undefined);
+    return this.closing;
   }
 }

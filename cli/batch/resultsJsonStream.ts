@@ -39,7 +39,7 @@ export class ResultsJsonStream {
     });
     this.entries = new Array(order.length);
     this.held = new Array(order.length);
-    this.file = new AtomicFile(path);
+    this.file = new AtomicFile(path).flushWhileWriting(1000);
     this.file.write('[\n');
   }
 

@@ -1,4 +1,5 @@
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
@@ -327,8 +328,9 @@ async function runWithPool(
     throw err;
   } finally {
     progress.finish();
-    await pool.close();
   }
+  // The threads end while the outputs are written (runBatch waits for them before it returns).
+  const closing = pool.close();
 
   // Series need the whole batch: a shard leaves them to the merge.
   const seriesErrors: string[] = [];
@@ -356,11 +358,16 @@ async function runWithPool(
     resultsJson.abort();
     throw err;
   } finally {
-    curvesSpool?.remove();
+    curvesSpool?.close();
   }
   // The journal is only needed to finish an interrupted batch; a complete one lives in results.json.
-  if (interrupted) journal.close();
-  else journal.remove();
+  // Deleting a file of a hundred megabytes takes a while: both go at once, alongside the threads' end.
+  journal.close();
+  await Promise.all([
+    closing,
+    curvesSpool && rm(curvesSpool.path, { force: true }),
+    !interrupted && rm(journal.path, { force: true }),
+  ]);
 
   const failures = briefs
     .filter((b) => b.status === 'failed')
