@@ -10,6 +10,16 @@
 /** Exact powers of ten: every 10^k with k ≤ 22 is a double, so one multiply or divide rounds correctly. */
 const EXACT_POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
 
+/**
+ * The character code at `i`, or −1 past the end. Every read goes through here: a read past the end
+ * of a string (the end of a cell, or of a file without a last line break) sends the optimised code
+ * to a slower path for all later reads, of every file: a quarter of the general reader's time, and a
+ * fifth of the fast path's on a file without a last line break.
+ */
+function codeAt(text: string, i: number): number {
+  return i < text.length ? text.charCodeAt(i) : -1;
+}
+
 /** Accept a decimal point (`.`) in `scanDecimal`. */
 export const POINT_MARK = 1;
 /** Accept a decimal comma (`,`) in `scanDecimal`. */
@@ -34,18 +44,18 @@ let scanMark = 0;
  */
 export function scanDecimal(text: string, start: number, marks: number): number {
   let i = start;
-  let c = text.charCodeAt(i);
+  let c = codeAt(text, i);
   let negative = false;
   if (c === 45 || c === 43) {
     negative = c === 45;
-    c = text.charCodeAt(++i);
+    c = codeAt(text, ++i);
   }
   // The whole part, then the fraction after a mark; the digit counts come from the positions.
   let mantissa = 0;
   const wholeStart = i;
   while (c >= 48 && c <= 57) {
     mantissa = mantissa * 10 + (c - 48);
-    c = text.charCodeAt(++i);
+    c = codeAt(text, ++i);
   }
   let digits = i - wholeStart;
   let scale = 0;
@@ -53,10 +63,10 @@ export function scanDecimal(text: string, start: number, marks: number): number 
   if ((c === 46 && (marks & POINT_MARK) !== 0) || (c === 44 && (marks & COMMA_MARK) !== 0)) {
     mark = c;
     const fractionStart = ++i;
-    c = text.charCodeAt(i);
+    c = codeAt(text, i);
     while (c >= 48 && c <= 57) {
       mantissa = mantissa * 10 + (c - 48);
-      c = text.charCodeAt(++i);
+      c = codeAt(text, ++i);
     }
     scale = fractionStart - i;
     digits -= scale;
@@ -68,17 +78,17 @@ export function scanDecimal(text: string, start: number, marks: number): number 
   }
   let exp = 0;
   if (c === 101 || c === 69) {
-    c = text.charCodeAt(++i);
+    c = codeAt(text, ++i);
     let expNegative = false;
     if (c === 45 || c === 43) {
       expNegative = c === 45;
-      c = text.charCodeAt(++i);
+      c = codeAt(text, ++i);
     }
     const expStart = i;
     while (c >= 48 && c <= 57) {
       // Beyond 10⁶ the value is 0 or Infinity whatever follows; stop growing the integer.
       if (exp < 1e6) exp = exp * 10 + (c - 48);
-      c = text.charCodeAt(++i);
+      c = codeAt(text, ++i);
     }
     scanStop = i;
     if (i === expStart) return NaN;
@@ -141,12 +151,12 @@ export function scanNumericRows(
   let sawComma = false;
   let i = start;
   while (i < n) {
-    let c = text.charCodeAt(i);
+    let c = codeAt(text, i);
     if (c === 10) {
       i++;
       continue;
     }
-    if (c === 13 && text.charCodeAt(i + 1) === 10) {
+    if (c === 13 && codeAt(text, i + 1) === 10) {
       i += 2;
       continue;
     }
@@ -159,25 +169,25 @@ export function scanNumericRows(
       });
     }
     for (let j = 0; j < width; j++) {
-      while (c === 32 || (c === 9 && tabPads)) c = text.charCodeAt(++i);
+      while (c === 32 || (c === 9 && tabPads)) c = codeAt(text, ++i);
       const v = scanDecimal(text, i, marks);
       if (!Number.isFinite(v)) return null;
       if (scanMark === 46) sawPoint = true;
       else if (scanMark === 44) sawComma = true;
       columns[j][rows] = v;
       const end = (i = scanStop);
-      c = text.charCodeAt(i);
-      while (c === 32 || (c === 9 && tabPads)) c = text.charCodeAt(++i);
+      c = codeAt(text, i);
+      while (c === 32 || (c === 9 && tabPads)) c = codeAt(text, ++i);
       if (j < width - 1) {
         if (whitespace) {
           if (i === end) return null;
         } else {
           if (c !== separator) return null;
-          c = text.charCodeAt(++i);
+          c = codeAt(text, ++i);
         }
       }
     }
-    if (c === 13) c = text.charCodeAt(++i);
+    if (c === 13) c = codeAt(text, ++i);
     if (c === 10) i++;
     else if (i < n) return null;
     rows++;
