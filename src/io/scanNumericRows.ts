@@ -125,7 +125,8 @@ export const WHITESPACE = -2;
 /**
  * Reads rows of `width` plain decimal cells from `start` to the end of the text, cells separated by
  * `separator` (a character code, SINGLE_COLUMN or WHITESPACE), spaces or tabs (when tab is not the
- * separator) allowed around a cell, lines ended by LF or CRLF, empty lines skipped. Decimal commas
+ * separator) allowed around a cell, a separator allowed after the last cell, lines ended by LF or CRLF,
+ * empty lines skipped. Decimal commas
  * are accepted where the separator is not a comma; a file using both marks is left to the general
  * reader, which names the cell. Returns null unless every line is such a row, there is at least one,
  * and every value is finite.
@@ -186,6 +187,11 @@ export function scanNumericRows(
           c = codeAt(text, ++i);
         }
       }
+    }
+    // A separator after the last cell (spreadsheet exports) leaves an empty field, which is dropped.
+    if (c === separator && separator > 0) {
+      c = codeAt(text, ++i);
+      while (c === 32 || (c === 9 && tabPads)) c = codeAt(text, ++i);
     }
     if (c === 13) c = codeAt(text, ++i);
     if (c === 10) i++;

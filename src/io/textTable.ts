@@ -292,12 +292,22 @@ function readPlainTable(text: string, source: string): TextTable | null {
     firstText = raw;
     break;
   }
-  if (firstText === null || firstText.includes('"')) return null;
+  if (firstText === null) return null;
   const delimiter = detectDelimiter(firstText);
   const separator = SEPARATOR_CODE[delimiter];
-  const cells = splitPlainLine(firstText, delimiter);
+  let cells: string[];
+  if (!firstText.includes('"')) cells = splitPlainLine(firstText, delimiter);
+  else if (separator < 0) return null;
+  else {
+    // A quoted header (a common export) over plain numbers; a bad quote is the general reader's to name.
+    try {
+      cells = splitQuoted(firstText, line, PAPA_DELIMITER[delimiter], source);
+    } catch {
+      return null;
+    }
+  }
   const { first, header } = firstRow(cells);
-  if (first !== cells || (header && headerProblem(header, line, source))) return null;
+  if (header && headerProblem(header, line, source)) return null;
   const scanned = scanNumericRows(
     text,
     header ? Math.min(pos, text.length) : firstStart,

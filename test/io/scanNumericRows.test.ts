@@ -102,6 +102,8 @@ const plainTable = fc
     meta: fc.boolean(),
     pads: fc.array(fc.constantFrom('', '', '', ' ', '  '), { minLength: 8, maxLength: 8 }),
     blankAt: fc.option(fc.nat(), { nil: undefined }),
+    trailing: fc.array(fc.boolean(), { minLength: 8, maxLength: 8 }),
+    quoted: fc.boolean(),
   })
   .map((g) => {
     const width = g.sep === '' ? 1 : g.width;
@@ -114,13 +116,17 @@ const plainTable = fc
     const nl = g.crlf ? '\r\n' : '\n';
     const lines: string[] = [];
     if (g.meta) lines.push('# sample: fast', '# bin_width_ns: 0.01', '#', '');
-    if (header) lines.push([header, 'counts', 'b', 'c'].slice(0, width).join(g.sep));
+    // A separator after the last cell (spreadsheet exports) where there is a separator to repeat.
+    const trail = (k: number) => (width > 1 && !blank && g.trailing[k % g.trailing.length] ? g.sep : '');
+    const names = [header, 'counts', 'b', 'c'].slice(0, width);
+    if (header)
+      lines.push(names.map((h) => (g.quoted && width > 1 && !blank ? `"${h}"` : h)).join(g.sep) + trail(7));
     g.rows.forEach((row, r) => {
       const cells = row.slice(0, width).map((c, j) => {
         const pad = g.pads[(r + j) % g.pads.length];
         return pad + (comma ? c.replace('.', ',') : c) + (j % 2 ? pad : '');
       });
-      lines.push(cells.join(g.sep));
+      lines.push(cells.join(g.sep) + trail(r));
     });
     if (g.blankAt !== undefined) lines.splice(lines.length - (g.blankAt % g.rows.length), 0, '');
     const text = (g.bom ? '\ufeff' : '') + lines.join(nl) + (g.trailingNewline ? nl : '');
@@ -204,8 +210,10 @@ describe('the fast path of the table reader', () => {
   it('leaves a file with an unusual line to the general reader, which reads it alike', () => {
     const cases = [
       'time_ns,counts\n0,1\n# late: metadata\n1,2\n', // a comment among the data
-      'time_ns,counts\n0,1,\n1,2,\n', // trailing separators
+      'time_ns,counts\n0,1,,\n1,2\n', // two trailing separators: refused
       'time_ns,counts\n"0",1\n1,2\n', // a quoted cell
+      '"time_ns,counts\n0,1\n1,2\n', // an unterminated quote: refused
+      '"time_ns,counts\n0,1\n1,\u00002\n', // and binary data, which is named first
       'time_ns,counts\r0,1\r1,2\r', // CR line ends
       'time (ps) counts\n0 1\n1 2\n', // a whitespace header whose unit must be joined to its name
       'a;b\n1,5;2\n2.5;3\n', // mixed decimal marks: refused
