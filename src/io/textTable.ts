@@ -247,6 +247,19 @@ export function readTextTable(text: string, source: string): TextTable {
   return readPlainTable(text, source) ?? readGeneralTable(text, source);
 }
 
+/**
+ * Whitespace tables may have headers like "time (ps)": the names of such a header line with each
+ * parenthesised or bracketed unit joined to the word before it. The readers use them when that makes
+ * the header as wide as the data.
+ */
+function joinUnitsToNames(headerLine: string): string[] {
+  return headerLine
+    .trim()
+    .replace(/\s+(?=[([/])/g, '')
+    .replace(/\/\s+/g, '/')
+    .split(/\s+/);
+}
+
 /** Separator character codes of the delimiters the fast path reads. */
 const SEPARATOR_CODE: Record<Delimiter, number> = {
   comma: 44,
@@ -307,20 +320,22 @@ function readPlainTable(text: string, source: string): TextTable | null {
     }
   }
   const { first, header } = firstRow(cells);
-  if (header && headerProblem(header, line, source)) return null;
-  const scanned = scanNumericRows(
-    text,
-    header ? Math.min(pos, text.length) : firstStart,
-    first.length,
-    separator,
-  );
-  if (!scanned) return null;
+  const dataStart = header ? Math.min(pos, text.length) : firstStart;
+  let columns = header ?? first.map((_, j) => `col${j + 1}`);
+  let scanned = scanNumericRows(text, dataStart, first.length, separator);
+  if (!scanned && header && delimiter === 'whitespace') {
+    // Rows as wide as the header with its units joined to their names take those names.
+    const joined = joinUnitsToNames(firstText);
+    if (joined.length !== header.length) scanned = scanNumericRows(text, dataStart, joined.length, separator);
+    columns = joined;
+  }
+  if (!scanned || (header && headerProblem(columns, line, source))) return null;
   const table: TextTable = {
     source,
     delimiter,
     decimalMark: scanned.decimalMark,
     header,
-    columns: header ?? first.map((_, j) => `col${j + 1}`),
+    columns,
     get rows(): TableRow[] {
       // Made once, by the general reader, only for a caller that needs the cells' text.
       const rows = readGeneralTable(text, source).rows;
@@ -385,14 +400,8 @@ export function readGeneralTable(text: string, source: string): TextTable {
   }
 
   let columns = header ?? first.map((_, j) => `col${j + 1}`);
-  // Whitespace tables may have headers like "time (ps)": join a parenthesised or bracketed unit to
-  // the word before it when that makes the header as wide as the data.
   if (header && delimiter === 'whitespace' && header.length !== dataCells[0].length) {
-    const joined = content.text[0]
-      .trim()
-      .replace(/\s+(?=[([/])/g, '')
-      .replace(/\/\s+/g, '/')
-      .split(/\s+/);
+    const joined = joinUnitsToNames(content.text[0]);
     if (joined.length === dataCells[0].length) columns = joined;
   }
   if (header) {
