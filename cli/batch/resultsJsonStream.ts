@@ -4,7 +4,7 @@ import { AtomicFile, writeFileAtomic } from './atomicWrite.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
-const DEFAULT_MAX_HELD_BYTES = 64 * 1024 * 1024;
+const DEFAULT_MAX_HELD_BYTES = 32 * 1024 * 1024;
 
 /**
  * results.json, written while the batch runs instead of copied out of the journal at the end: each
