@@ -46,12 +46,40 @@ export function axisDecimals(timeNs: ArrayLike<number>): number {
   return -1;
 }
 
+function writeAxis(w: JsonBytes, timeNs: ArrayLike<number>): void {
+  const decimals = axisDecimals(timeNs);
+  if (decimals < 0) w.exactArray(timeNs);
+  else w.fixedArray(timeNs, decimals);
+}
+
+/**
+ * The last time axis written and its text, for writing many fits in a row: the decays of a batch
+ * mostly share one axis, whose 4096 times then need only comparing, not printing again.
+ */
+export class AxisCache {
+  private values = new Float64Array(0);
+  private text = new Uint8Array(0);
+
+  write(w: JsonBytes, timeNs: ArrayLike<number>): void {
+    const n = timeNs.length;
+    let same = n === this.values.length;
+    for (let i = 0; i < n && same; i++) same = timeNs[i] === this.values[i];
+    if (same) {
+      w.bytes(this.text);
+      return;
+    }
+    const start = w.length;
+    writeAxis(w, timeNs);
+    this.text = w.view().slice(start);
+    this.values = Float64Array.from(timeNs);
+  }
+}
+
 /** Writes `curves` as the JSON object of `FitCurves`, rounded as described above. */
-export function writeFitCurves(w: JsonBytes, curves: FitCurves): JsonBytes {
-  const decimals = axisDecimals(curves.timeNs);
+export function writeFitCurves(w: JsonBytes, curves: FitCurves, axis?: AxisCache): JsonBytes {
   w.ascii('{"timeNs":');
-  if (decimals < 0) w.exactArray(curves.timeNs);
-  else w.fixedArray(curves.timeNs, decimals);
+  if (axis) axis.write(w, curves.timeNs);
+  else writeAxis(w, curves.timeNs);
   w.ascii(',"data":').exactArray(curves.data);
   w.ascii(',"model":').significantArray(curves.model, CURVE_SIGNIFICANT_DIGITS);
   w.ascii(',"irf":').significantArray(curves.irf, CURVE_SIGNIFICANT_DIGITS);

@@ -63,6 +63,14 @@ export class JsonBytes {
     return this;
   }
 
+  /** Bytes already encoded (a piece written before). */
+  bytes(b: Uint8Array): this {
+    this.room(b.length);
+    this.buf.set(b, this.length);
+    this.length += b.length;
+    return this;
+  }
+
   byte(code: number): this {
     this.room(1);
     this.buf[this.length++] = code;

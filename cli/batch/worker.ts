@@ -7,6 +7,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
+import { AxisCache } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
 import { writePackedCurves } from '../../shared/reportHtml.js';
 import type { SampleResult } from '../../shared/schema.js';
@@ -110,6 +111,7 @@ function runTask(task: WorkTask): SampleResult[] {
 }
 
 const out = new JsonBytes(1 << 18);
+const axis = new AxisCache();
 
 /** Buffers the batch's thread has handed back after using a reply, to write the next ones into. */
 const spare: ArrayBuffer[] = [];
@@ -151,7 +153,7 @@ parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
   const reply: WorkReply = {
     id: message.id,
     results: results.map((r) => {
-      writeSampleResult(out.reset(), r);
+      writeSampleResult(out.reset(), r, axis);
       const json = lineToSend();
       const curves = reportCurves(r);
       transfer.push(json.buffer as ArrayBuffer);

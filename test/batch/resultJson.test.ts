@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { axisDecimals, writeFitCurves } from '../../shared/curvesJson.js';
+import { AxisCache, axisDecimals, writeFitCurves } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
 import type { FitCurves, SampleResult } from '../../shared/schema.js';
 import { sampleResultJson } from '../../src/batch/resultJson.js';
@@ -99,6 +99,28 @@ describe('sampleResultJson', () => {
     const { curves: _c, ...brief } = result.fit!;
     const noCurves = { ...result, fit: brief as SampleResult['fit'] };
     expect(JSON.parse(sampleResultJson(noCurves))).toEqual(JSON.parse(JSON.stringify(noCurves)));
+  });
+});
+
+describe('AxisCache', () => {
+  it('writes a repeated time axis from its stored text, and a new one afresh', () => {
+    const curves = (timeNs: number[]): FitCurves => ({
+      timeNs,
+      data: timeNs.map(() => 1),
+      model: timeNs.map(() => 1),
+      irf: [],
+      weightedResiduals: timeNs.map(() => 0),
+      autocorrelation: [1],
+      fitStartIndex: 0,
+      fitEndIndex: timeNs.length - 1,
+    });
+    const text = (c: FitCurves, cache?: AxisCache) =>
+      new TextDecoder().decode(writeFitCurves(new JsonBytes(), c, cache).take());
+    const cache = new AxisCache();
+    const a = curves(Array.from({ length: 50 }, (_, i) => i * 0.0122));
+    const b = curves(Array.from({ length: 50 }, (_, i) => i * 0.025));
+    for (const c of [a, a, b, b, a, curves(a.timeNs.slice(0, 49))]) expect(text(c, cache)).toBe(text(c));
+    expect(text(b, cache)).toContain('"timeNs":[0,0.025,0.05,');
   });
 });
 
