@@ -25,24 +25,23 @@ export const POINT_MARK = 1;
 /** Accept a decimal comma (`,`) in `scanDecimal`. */
 export const COMMA_MARK = 2;
 
-/** Where the last `scanDecimal` stopped: the index just past its number. */
+// What the last scan found besides its value, in module variables so that the row scanner's hot
+// loop allocates nothing: where it stopped, the decimal mark it met (46 for `.`, 44 for `,`, 0 for
+// none), and the digits of the number before any exponent.
 let scanStop = 0;
-/** The decimal mark the last `scanDecimal` met (46 for `.`, 44 for `,`), or 0 for none. */
 let scanMark = 0;
+let scanMantissa = 0;
+let scanDigits = 0;
+let scanScale = 0;
+let scanNegative = false;
 
 /**
- * Reads the number that starts at `text[start]` in the grammar of a plain decimal cell, the same as
- * the table reader's `[+-]?(\d+[.]?\d*|[.]\d+)([eE][+-]?\d+)?` with the accepted decimal marks
- * (`marks`, a sum of POINT_MARK and COMMA_MARK): no spaces, no `Infinity`, no hexadecimal. It stops
- * at the first character that cannot continue the number; `scanEnd()` says where. Returns NaN when
- * no number starts there or an exponent has no digits.
- *
- * The value is the double `Number` gives for that text. When the digits form an integer below 2⁵³
- * and the decimal exponent is within ±22, it is computed here by one multiply or divide of exact
- * operands, which IEEE arithmetic rounds correctly (Clinger's fast path); otherwise `Number` reads
- * the cell's text. Out-of-range text gives ±Infinity or 0, as `Number` does.
+ * The common number, without an exponent and of at most 15 digits, read from `text[start]` as
+ * `scanDecimal` reads it; NaN for anything else, with what it read in the module variables for
+ * `scanDecimal` to go on from. Kept small so that the compiler inlines it into the row scanner,
+ * where a call per cell, and a heap number per fractional value, cost a third of a parse.
  */
-export function scanDecimal(text: string, start: number, marks: number): number {
+function scanPlainDecimal(text: string, start: number, marks: number): number {
   let i = start;
   let c = codeAt(text, i);
   let negative = false;
@@ -71,11 +70,39 @@ export function scanDecimal(text: string, start: number, marks: number): number 
     scale = fractionStart - i;
     digits -= scale;
   }
+  scanStop = i;
   scanMark = mark;
-  if (digits === 0) {
-    scanStop = i;
-    return NaN;
+  scanDigits = digits;
+  if (digits === 0 || digits > 15 || c === 101 || c === 69) {
+    scanMantissa = mantissa;
+    scanScale = scale;
+    scanNegative = negative;
+    // NaN written as 0 / 0, a number the compiler keeps unboxed: the global `NaN` is loaded as an
+    // object, and returning it made every value this function returns a heap number.
+    return 0 / 0;
   }
+  // At most 15 digits, so at most 15 decimals: the divisor is exact.
+  const v = scale < 0 ? mantissa / EXACT_POW10[-scale] : mantissa;
+  return negative ? -v : v;
+}
+
+/**
+ * Reads the number that starts at `text[start]` in the grammar of a plain decimal cell, the same as
+ * the table reader's `[+-]?(\d+[.]?\d*|[.]\d+)([eE][+-]?\d+)?` with the accepted decimal marks
+ * (`marks`, a sum of POINT_MARK and COMMA_MARK): no spaces, no `Infinity`, no hexadecimal. It stops
+ * at the first character that cannot continue the number; `scanEnd()` says where. Returns NaN when
+ * no number starts there or an exponent has no digits.
+ *
+ * The value is the double `Number` gives for that text. When the digits form an integer below 2⁵³
+ * and the decimal exponent is within ±22, it is computed here by one multiply or divide of exact
+ * operands, which IEEE arithmetic rounds correctly (Clinger's fast path); otherwise `Number` reads
+ * the cell's text. Out-of-range text gives ±Infinity or 0, as `Number` does.
+ */
+export function scanDecimal(text: string, start: number, marks: number): number {
+  const plain = scanPlainDecimal(text, start, marks);
+  if (plain === plain || scanDigits === 0) return plain;
+  let i = scanStop;
+  let c = codeAt(text, i);
   let exp = 0;
   if (c === 101 || c === 69) {
     c = codeAt(text, ++i);
@@ -94,14 +121,13 @@ export function scanDecimal(text: string, start: number, marks: number): number 
     if (i === expStart) return NaN;
     if (expNegative) exp = -exp;
   }
-  scanStop = i;
-  scale += exp;
-  if (digits <= 15 && scale >= -22 && scale <= 22) {
-    const v = scale < 0 ? mantissa / EXACT_POW10[-scale] : mantissa * EXACT_POW10[scale];
-    return negative ? -v : v;
+  const scale = scanScale + exp;
+  if (scanDigits <= 15 && scale >= -22 && scale <= 22) {
+    const v = scale < 0 ? scanMantissa / EXACT_POW10[-scale] : scanMantissa * EXACT_POW10[scale];
+    return scanNegative ? -v : v;
   }
   const cell = text.slice(start, i);
-  return Number(mark === 44 ? cell.replace(',', '.') : cell);
+  return Number(scanMark === 44 ? cell.replace(',', '.') : cell);
 }
 
 /** The index just past the number the last `scanDecimal` read (or where it failed). */
@@ -171,11 +197,16 @@ export function scanNumericRows(
     }
     for (let j = 0; j < width; j++) {
       while (c === 32 || (c === 9 && tabPads)) c = codeAt(text, ++i);
-      const v = scanDecimal(text, i, marks);
-      if (!Number.isFinite(v)) return null;
+      // The common number is stored apart from the rest, so that its value stays an unboxed double.
+      const v = scanPlainDecimal(text, i, marks);
+      if (v === v) columns[j][rows] = v;
+      else {
+        const w = scanDecimal(text, i, marks);
+        if (!Number.isFinite(w)) return null;
+        columns[j][rows] = w;
+      }
       if (scanMark === 46) sawPoint = true;
       else if (scanMark === 44) sawComma = true;
-      columns[j][rows] = v;
       const end = (i = scanStop);
       c = codeAt(text, i);
       while (c === 32 || (c === 9 && tabPads)) c = codeAt(text, ++i);
