@@ -38,8 +38,8 @@ let scanNegative = false;
 /**
  * The common number, without an exponent and of at most 15 digits, read from `text[start]` as
  * `scanDecimal` reads it; NaN for anything else, with what it read in the module variables for
- * `scanDecimal` to go on from. Kept small so that the compiler inlines it into the row scanner,
- * where a call per cell, and a heap number per fractional value, cost a third of a parse.
+ * `scanDecimal` to go on from. Kept small so that the compiler inlines it into the row scanner:
+ * called, it cost a call per cell and a heap number per fractional value (64 kB per 4096 rows).
  */
 function scanPlainDecimal(text: string, start: number, marks: number): number {
   let i = start;
