@@ -5,7 +5,6 @@ import { dirname, join, resolve } from 'node:path';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { sha256Hex, stableStringify } from '../../src/batch/hash.js';
 import { parseManifest, type ManifestRow } from '../../src/batch/manifest.js';
-import { parseResultsJson } from '../../src/batch/merge.js';
 import { failedSample, sampleFileRefs, settingsRecord, type RunContext } from '../../src/batch/runSample.js';
 import { runSeries } from '../../src/batch/series.js';
 import {
@@ -23,6 +22,7 @@ import { packageVersion } from '../version.js';
 import { Journal, readJournal } from './journal.js';
 import { siblingModule, WorkerPool } from './pool.js';
 import { ProgressBar } from './progress.js';
+import { readResultsEntries } from './readResults.js';
 import { ResultsJsonStream } from './resultsJsonStream.js';
 import { reportWriter } from './report.js';
 import {
@@ -110,37 +110,23 @@ function reusable(prev: SampleResult, p: Prepared, version: string): boolean {
 }
 
 /**
- * Each sample's JSON text in a results.json as lumirate writes it (one sample per line between `[`
- * and `]`), so that a large file is parsed one sample at a time; any other layout is parsed whole.
- */
-function resultsJsonTexts(text: string, source: string): string[] {
-  const lines = text.split('\n');
-  if (lines[0] === '[' && lines.at(-2) === ']' && lines.at(-1) === '') {
-    return lines.slice(1, -2).map((l) => (l.endsWith(',') ? l.slice(0, -1) : l));
-  }
-  return parseResultsJson(text, source).map((r) => JSON.stringify(r));
-}
-
-/**
  * Previous results in outDir: results.json of a finished run, then the journal of an interrupted one
- * (later wins). Kept as JSON text plus the result without its curves, to hold memory down.
+ * (later wins). Kept as JSON text or bytes plus the result without its curves, to hold memory down.
  */
-function previousResults(outDir: string): Map<string, { text: string; value: SampleResult }> {
-  const out = new Map<string, { text: string; value: SampleResult }>();
-  const keep = (text: string, value: unknown) => {
-    const r = value as SampleResult;
-    if (r && typeof r.sample === 'string') out.set(r.sample, { text, value: briefOf(r) });
-  };
+function previousResults(outDir: string): Map<string, OutputEntry> {
+  const out = new Map<string, OutputEntry>();
   const resultsPath = join(outDir, 'results.json');
   if (existsSync(resultsPath)) {
     try {
-      for (const text of resultsJsonTexts(readFileSync(resultsPath, 'utf8'), resultsPath))
-        keep(text, JSON.parse(text));
+      for (const e of readResultsEntries(resultsPath, { report: false })) out.set(e.brief.sample, e);
     } catch {
       // An unreadable results.json just means nothing to reuse from it.
     }
   }
-  for (const line of readJournal(join(outDir, JOURNAL_NAME))) keep(line.text, line.value);
+  for (const { text, value } of readJournal(join(outDir, JOURNAL_NAME))) {
+    const r = value as SampleResult;
+    if (r && typeof r.sample === 'string') out.set(r.sample, { brief: briefOf(r), json: () => text });
+  }
   return out;
 }
 
@@ -223,23 +209,20 @@ async function runWithPool(
     const groups = new Map<string, Prepared[]>();
     for (const p of prepared) {
       if (p.settings.group) groups.set(p.settings.group, [...(groups.get(p.settings.group) ?? []), p]);
-      else if (prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.value, p, version))
+      else if (prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.brief, p, version))
         keep.add(p.settings.sample);
     }
     // A group is reused only whole: its lifetimes were fitted from all members together.
     for (const members of groups.values()) {
       if (
         members.every(
-          (p) => prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.value, p, version),
+          (p) => prev.has(p.settings.sample) && reusable(prev.get(p.settings.sample)!.brief, p, version),
         )
       ) {
         for (const p of members) keep.add(p.settings.sample);
       }
     }
-    for (const sample of keep) {
-      const { text, value } = prev.get(sample)!;
-      entries.push({ brief: value, json: () => text });
-    }
+    for (const sample of keep) entries.push(prev.get(sample)!);
     reused = keep.size;
     toRun = prepared.filter((p) => !keep.has(p.settings.sample));
   }

@@ -1,13 +1,13 @@
 import { join } from 'node:path';
 import type { Command } from 'commander';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
-import { mergeResults, parseResultsJson } from '../../src/batch/merge.js';
+import { mergeResults } from '../../src/batch/merge.js';
 import { runSeries } from '../../src/batch/series.js';
 import { parseSettings } from '../../src/batch/settings.js';
 import { seriesOptions } from '../batch/runBatch.js';
 import { reportWriter } from '../batch/report.js';
-import { briefOf } from '../batch/protocol.js';
-import { removeStaleTemporaries, writeBatchOutputs } from '../batch/writeOutputs.js';
+import { readResultsEntries } from '../batch/readResults.js';
+import { removeStaleTemporaries, writeBatchOutputs, type OutputEntry } from '../batch/writeOutputs.js';
 import { mkdirSync } from 'node:fs';
 import { EXIT } from '../exitCodes.js';
 import { readTextFile } from '../readInput.js';
@@ -26,9 +26,13 @@ export function register(program: Command): void {
     .option('--no-report', 'do not write report.html')
     .action(
       action((dirs: string[], opts: { out: string; settings?: string; report: boolean }) => {
+        // Each sample's JSON is kept as the bytes it is in its file; only its brief is held parsed.
+        const entryOf = new Map<SampleResult, OutputEntry>();
         const parts = dirs.map((dir) => {
           const path = join(dir, 'results.json');
-          return { source: path, results: parseResultsJson(readTextFile(path), path) };
+          const entries = readResultsEntries(path, { report: opts.report });
+          for (const e of entries) entryOf.set(e.brief, e);
+          return { source: path, results: entries.map((e) => e.brief) };
         });
         const merged: SampleResult[] = mergeResults(parts);
         const series: SeriesResult[] = [];
@@ -37,7 +41,7 @@ export function register(program: Command): void {
           const settings = parseSettings(readTextFile(opts.settings), { source: opts.settings });
           for (const req of settings.series) {
             try {
-              series.push(runSeries(merged.map(briefOf), seriesOptions(req)));
+              series.push(runSeries(merged, seriesOptions(req)));
             } catch (err) {
               problems.push(
                 `series ${req.model} against ${req.x}: ${err instanceof Error ? err.message : String(err)}`,
@@ -49,7 +53,7 @@ export function register(program: Command): void {
         removeStaleTemporaries(opts.out);
         writeBatchOutputs(
           opts.out,
-          merged.map((r) => ({ brief: briefOf(r), json: () => JSON.stringify(r) })),
+          merged.map((r) => entryOf.get(r)!),
           series,
           {
             title: 'lumirate batch (merged)',
