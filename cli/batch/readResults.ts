@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { curvesForScript } from '../../shared/reportHtml.js';
-import { isCompatibleSchema, isSampleResult, type SampleResult } from '../../shared/schema.js';
-import { parseResultsJson } from '../../src/batch/merge.js';
+import type { SampleResult } from '../../shared/schema.js';
+import { notASampleResult, parseResultsJson } from '../../src/batch/merge.js';
 import { InputError } from '../../src/errors.js';
 import { decodeText } from '../../src/io/decodeText.js';
 import { readTextFile } from '../readInput.js';
@@ -62,15 +62,9 @@ export function readResultsEntries(path: string, options: { report: boolean }): 
         { file: path, line },
       );
     }
-    if (!isSampleResult(value)) {
-      const v = (value as { schemaVersion?: unknown })?.schemaVersion;
-      const why =
-        v !== undefined && !isCompatibleSchema(v)
-          ? `schema version ${String(v)} cannot be read by this lumirate`
-          : 'not a sample result';
-      throw new InputError(`entry ${entries.length + 1}: ${why}`, { file: path, line });
-    }
-    entries.push(entryOf(value, view, options));
+    const why = notASampleResult(value);
+    if (why) throw new InputError(`entry ${entries.length + 1}: ${why}`, { file: path, line });
+    entries.push(entryOf(value as SampleResult, view, options));
     start = end + 1;
     line++;
   }

@@ -22,16 +22,19 @@ export function parseResultsJson(text: string, source: string): SampleResult[] {
   }
   if (!Array.isArray(data)) throw new InputError('expected an array of sample results', { file: source });
   data.forEach((item, k) => {
-    if (!isSampleResult(item)) {
-      const v = (item as { schemaVersion?: unknown })?.schemaVersion;
-      const why =
-        v !== undefined && !isCompatibleSchema(v)
-          ? `schema version ${String(v)} cannot be read by this lumirate`
-          : 'not a sample result';
-      throw new InputError(`entry ${k + 1}: ${why}`, { file: source });
-    }
+    const why = notASampleResult(item);
+    if (why) throw new InputError(`entry ${k + 1}: ${why}`, { file: source });
   });
   return data as SampleResult[];
+}
+
+/** Why a parsed entry of a results.json is not a sample result this lumirate reads, or null when it is. */
+export function notASampleResult(item: unknown): string | null {
+  if (isSampleResult(item)) return null;
+  const v = (item as { schemaVersion?: unknown })?.schemaVersion;
+  return v !== undefined && !isCompatibleSchema(v)
+    ? `schema version ${String(v)} cannot be read by this lumirate`
+    : 'not a sample result';
 }
 
 /** Manifest order: by row, then by id for results that carry no row. */

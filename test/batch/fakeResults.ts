@@ -1,4 +1,4 @@
-import { SCHEMA_VERSION, type FitResult, type SampleResult } from '../../shared/schema.js';
+import { SCHEMA_VERSION, type FitCurves, type FitResult, type SampleResult } from '../../shared/schema.js';
 
 /**
  * A sample result with a one-component fit of the given lifetime, for tests of the layers above the
@@ -60,3 +60,15 @@ export function fakeSample(
     ...extra,
   };
 }
+
+/** Three channels of plotting curves, for tests of how curves are stored and packed. */
+export const fakeCurves: FitCurves = {
+  timeNs: [0, 0.5, 1],
+  data: [3, 10, 4],
+  model: [null, 9.87654, 4.01],
+  irf: [1, 0, 0],
+  weightedResiduals: [null, 0.041, -0.005],
+  autocorrelation: [1, -0.25],
+  fitStartIndex: 1,
+  fitEndIndex: 2,
+};

@@ -13,6 +13,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal, readJournal } from '../../cli/batch/journal.js';
 import { curvesForScript } from '../../shared/reportHtml.js';
+import { fakeCurves } from './fakeResults.js';
 import { removeStaleTemporaries, reportCurvesOf } from '../../cli/batch/writeOutputs.js';
 
 const dirs: string[] = [];
@@ -115,16 +116,7 @@ describe('writeFileAtomic', () => {
 });
 
 describe('reportCurvesOf', () => {
-  const curves = {
-    timeNs: [0, 0.5, 1],
-    data: [3, 10, 4],
-    model: [null, 9.87654, 4.01],
-    irf: [1, 0, 0],
-    weightedResiduals: [null, 0.041, -0.005],
-    autocorrelation: [1, -0.25],
-    fitStartIndex: 1,
-    fitEndIndex: 3,
-  };
+  const curves = fakeCurves;
   it('packs the curves from the JSON text as the whole-page writer does, parsing only when asked', () => {
     let reads = 0;
     const full = { sample: 'a', fit: { curves } };

@@ -5,10 +5,10 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { readResultsEntries } from '../../cli/batch/readResults.js';
 import { resultsJsonChunks } from '../../cli/batch/resultsJsonStream.js';
 import { curvesForScript } from '../../shared/reportHtml.js';
-import type { FitCurves, SampleResult } from '../../shared/schema.js';
+import type { SampleResult } from '../../shared/schema.js';
 import { InputError } from '../../src/errors.js';
 import { errorOf } from './errorOf.js';
-import { fakeSample } from './fakeResults.js';
+import { fakeCurves, fakeSample } from './fakeResults.js';
 
 const dirs: string[] = [];
 function file(name: string, content: string): string {
@@ -21,16 +21,7 @@ afterEach(() => {
   for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
 });
 
-const curves: FitCurves = {
-  timeNs: [0, 0.5, 1],
-  data: [3, 10, 4],
-  model: [null, 9.87654, 4.01],
-  irf: [1, 0, 0],
-  weightedResiduals: [null, 0.041, -0.005],
-  autocorrelation: [1, -0.25],
-  fitStartIndex: 1,
-  fitEndIndex: 2,
-};
+const curves = fakeCurves;
 const withCurves = (s: SampleResult): SampleResult => ({ ...s, fit: { ...s.fit!, curves } });
 const samples = [
   withCurves(fakeSample('a', 1, 0.1)),
