@@ -20,12 +20,22 @@
  * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all. CPU time is
  * read from /proc/<pid>/stat by the same poll (so it misses at most the last 10 ms), and each run
  * prints the machine's load average at its start: on a shared machine a 1 → 2 worker speed-up in wall
- * time needs two idle cores.
+ * time needs two idle cores. The CPU time of each thread (from /proc/<pid>/task) is printed too: the
+ * batch's own thread, then the others, largest first: the worker threads, and V8's helper threads,
+ * which compile hot functions (each worker thread compiles its own) and collect garbage alongside.
  *
  * `BENCH_BATCH_N` changes the number of decays (default 1000).
  */
 import { spawn } from 'node:child_process';
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import {
+  existsSync,
+  mkdirSync,
+  mkdtempSync,
+  readdirSync,
+  readFileSync,
+  rmSync,
+  writeFileSync,
+} from 'node:fs';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { JsonBytes } from '../../shared/jsonBytes.js';
@@ -157,6 +167,8 @@ try {
     wallS: number;
     /** CPU time of the whole process, all threads, user + system. */
     cpuS: number;
+    /** CPU time of each thread, s: the process's main thread first, then the others, largest first. */
+    threadCpuS: number[];
     peakMb: number;
     code: number | null;
     ok: number;
@@ -183,12 +195,21 @@ try {
       child.stderr.on('data', (d) => (stderr += d));
       let peakKb = 0;
       let ticks = 0;
+      const threadTicks = new Map<string, number>();
       const load = loadavg()[0];
       const poll = setInterval(() => {
         try {
           const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${child.pid}/status`, 'utf8'));
           if (m) peakKb = Math.max(peakKb, Number(m[1]));
           ticks = Math.max(ticks, cpuTicks(readFileSync(`/proc/${child.pid}/stat`, 'utf8')));
+          for (const tid of readdirSync(`/proc/${child.pid}/task`)) {
+            try {
+              const t = cpuTicks(readFileSync(`/proc/${child.pid}/task/${tid}/stat`, 'utf8'));
+              threadTicks.set(tid, Math.max(threadTicks.get(tid) ?? 0, t));
+            } catch {
+              // the thread has just ended
+            }
+          }
         } catch {
           // the process has just ended
         }
@@ -199,7 +220,18 @@ try {
         const m = /batch: (\d+) ok/.exec(stderr);
         if (code !== 0) process.stderr.write(stderr.split('\n').slice(0, 5).join('\n') + '\n');
         rmSync(out, { recursive: true, force: true });
-        resolve({ wallS, cpuS: ticks / 100, peakMb: peakKb / 1024, code, ok: m ? Number(m[1]) : 0, load });
+        const main = threadTicks.get(String(child.pid)) ?? 0;
+        threadTicks.delete(String(child.pid));
+        const others = [...threadTicks.values()].filter((t) => t > 0).sort((a, b) => b - a);
+        resolve({
+          wallS,
+          cpuS: ticks / 100,
+          threadCpuS: [main, ...others].map((t) => t / 100),
+          peakMb: peakKb / 1024,
+          code,
+          ok: m ? Number(m[1]) : 0,
+          load,
+        });
       });
     });
 
@@ -215,6 +247,12 @@ try {
       results[jobs] = r;
       console.log(
         `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall, ${(N / r.wallS).toFixed(0)} decays/s, ${r.cpuS.toFixed(1)} s CPU (≥), peak RSS ${r.peakMb.toFixed(0)} MB, ${r.ok}/${N} ok, exit ${r.code}, load ${r.load.toFixed(1)}`,
+      );
+    }
+    for (const jobs of [1, 2]) {
+      const [main, ...others] = results[jobs].threadCpuS;
+      console.log(
+        `  --jobs ${jobs} CPU by thread: main ${main.toFixed(2)} s; others ${others.map((t) => t.toFixed(2)).join(', ')} s`,
       );
     }
     console.log(
