@@ -107,18 +107,20 @@ export class Journal {
 }
 
 /**
- * Every complete, parseable line of a journal, as JSON text with its parsed value, one at a time (a
- * journal of thousands of samples with curves is never parsed all at once); a torn tail is dropped.
+ * Every complete, parseable line of a journal, as its UTF-8 bytes (a view of the file's) with its
+ * parsed value, one at a time (a journal of thousands of samples with curves is never parsed all at
+ * once, and its text is not kept as strings); a torn tail is dropped.
  */
-export function* readJournal(path: string): Generator<{ text: string; value: unknown }> {
+export function* readJournal(path: string): Generator<{ bytes: Buffer; value: unknown }> {
   if (!existsSync(path)) return;
-  const content = readFileSync(path, 'utf8');
+  const content = readFileSync(path);
   let start = 0;
   for (;;) {
-    const end = content.indexOf('\n', start);
+    const end = content.indexOf(10, start);
     if (end < 0) break; // a line without its newline was being written when the process died
-    const text = content.slice(start, end);
+    const bytes = content.subarray(start, end);
     start = end + 1;
+    const text = bytes.toString('utf8');
     if (text.trim() === '') continue;
     let value: unknown;
     try {
@@ -127,6 +129,6 @@ export function* readJournal(path: string): Generator<{ text: string; value: unk
       // A line torn by a crash and then followed by a later append: skip it, its sample reruns.
       continue;
     }
-    yield { text, value };
+    yield { bytes, value };
   }
 }

@@ -123,9 +123,10 @@ function previousResults(outDir: string): Map<string, OutputEntry> {
       // An unreadable results.json just means nothing to reuse from it.
     }
   }
-  for (const { text, value } of readJournal(join(outDir, JOURNAL_NAME))) {
+  for (const { bytes, value } of readJournal(join(outDir, JOURNAL_NAME))) {
     const r = value as SampleResult;
-    if (r && typeof r.sample === 'string') out.set(r.sample, { brief: briefOf(r), json: () => text });
+    if (r && typeof r.sample === 'string')
+      out.set(r.sample, { brief: briefOf(r), json: () => bytes.toString('utf8'), bytes: () => bytes });
   }
   return out;
 }
