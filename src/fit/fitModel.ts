@@ -403,73 +403,29 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
   const runs = runsTest(resid);
   const ic = informationCriteria(lm.objective, F, nFit);
 
-  // Warnings.
-  const names = L.names;
-  const lowerP = perm.map((k) => run.lower[k]);
-  for (let k = 0; k < P; k++) {
-    if (!freeP[k] || !atBound[k]) continue;
-    if (k === L.background || k === L.scatter) continue; // 0 background or scatter simply means none
-    const isTau = L.lnTau.includes(k);
-    const shown = isTau ? Math.exp(all[k]) : k === L.irfSigma ? all[k] * FWHM_PER_SIGMA : all[k];
-    const unit = isTau || k === L.shift || k === L.irfCenter || k === L.irfSigma ? ' ns' : '';
-    const side = all[k] <= lowerP[k] ? 'lower' : 'upper';
-    warnings.push(`${names[k]} at ${side} bound ${fmt(shown)}${unit}`);
-  }
   let peakCounts = 0;
   let totalCounts = 0;
   for (let i = 0; i < nFit; i++) {
     totalCounts += data[i];
     if (data[i] > peakCounts) peakCounts = data[i];
   }
-  if (nc >= 2 && peakCounts < 1e4)
-    warnings.push(
-      `peak counts ${fmt(peakCounts)} are below the ≈10 000 usually needed to separate ${nc} lifetimes reliably`,
-    );
-  else if (nc === 1 && peakCounts < 100)
-    warnings.push(
-      `peak counts ${fmt(peakCounts)} are very low: the lifetime is uncertain and the χ² less meaningful`,
-    );
-  const irfFwhmNs =
-    setup.mode === 'gaussian'
-      ? all[L.irfSigma] * FWHM_PER_SIGMA
-      : setup.mode === 'measured'
-        ? setup.irfFwhmChannels * dt
-        : NaN;
-  if (setup.mode === 'measured' && setup.irfFwhmChannels < 2.5)
-    warnings.push(
-      `the IRF spans only ${fmt(setup.irfFwhmChannels)} channels (FWHM): its shape inside a channel has to be assumed, which can shift lifetimes by ~0.1 %; finer channels remove this`,
-    );
-  const windowNs = setup.channels * dt;
-  components.forEach((c, k) => {
-    if (irfFwhmNs > 0 && c.tauNs < irfFwhmNs / 10)
-      warnings.push(
-        `tau${k + 1}Ns ${fmt(c.tauNs)} ns is below a tenth of the IRF width (${fmt(irfFwhmNs)} ns FWHM): it depends on the IRF's exact shape`,
-      );
-    if (c.tauNs > windowNs)
-      warnings.push(`tau${k + 1}Ns ${fmt(c.tauNs)} ns is longer than the ${fmt(windowNs)} ns window`);
-  });
-  for (let a = 0; a < nc; a++)
-    for (let b = a + 1; b < nc; b++) {
-      const ea = components[a].tauErrNs;
-      const eb = components[b].tauErrNs;
-      const sep = Math.abs(components[a].tauNs - components[b].tauNs);
-      if (!(sep > 2 * Math.hypot(ea, eb)))
-        warnings.push(
-          `tau${a + 1}Ns and tau${b + 1}Ns are not resolved: they differ by ${fmt(sep)} ns, less than twice their combined error`,
-        );
-    }
   const chi2Red = chi2 / dof;
   const spread = Math.sqrt(chi2Spread) / dof;
-  if (chi2Red > 1 + 3 * spread)
-    warnings.push(
-      `chi2Reduced ${chi2Red.toFixed(3)} lies ${((chi2Red - 1) / spread).toFixed(1)} standard deviations (${spread.toFixed(3)}) above 1: the model does not describe the data within counting noise`,
-    );
-  if (runs.pValue < 0.01)
-    warnings.push(
-      `the residual signs form too ${runs.z < 0 ? 'few' : 'many'} runs (p = ${fmt(runs.pValue)}): systematic misfit`,
-    );
-  if (lm.stop !== 'converged')
-    warnings.push(`the optimiser stopped without converging (${lm.stop}) after ${lm.iterations} iterations`);
+  const lowerP = perm.map((k) => run.lower[k]);
+  addWarnings(warnings, {
+    setup,
+    layout: L,
+    all,
+    lower: lowerP,
+    free: freeP,
+    atBound,
+    components,
+    peakCounts,
+    chi2Red,
+    spread,
+    runs,
+    lm,
+  });
 
   const curves = withCurves
     ? plotCurves(setup, model.irfCurve(all), fullAxisModel(run), resid, decay)
@@ -535,10 +491,94 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     L.lnTau.includes(k) ? Math.exp(all[k]) : k === L.irfSigma ? FWHM_PER_SIGMA : 1;
   const freeSorted = Array.from({ length: P }, (_, k) => k).filter((k) => freeP[k]);
   result.covariance = {
-    names: freeSorted.map((k) => names[k]),
+    names: freeSorted.map((k) => L.names[k]),
     matrix: freeSorted.map((a) => freeSorted.map((b) => covP[a * P + b] * toReported(a) * toReported(b))),
   };
   return result;
+}
+
+/** What `addWarnings` needs to know of a finished fit (parameters in reported order). */
+interface WarningInputs {
+  setup: FitSetup;
+  layout: DecayModel['layout'];
+  all: Float64Array;
+  lower: number[];
+  free: boolean[];
+  atBound: boolean[];
+  components: ComponentResult[];
+  peakCounts: number;
+  chi2Red: number;
+  /** Standard deviation of χ²_red expected from counting noise alone. */
+  spread: number;
+  runs: { z: number; pValue: number };
+  lm: LmResult;
+}
+
+/**
+ * The result's warnings about the fit, appended to `warnings`. A function of its own: the branches
+ * are rare, and taken inside the long result assembly each would throw away its compiled code.
+ */
+function addWarnings(warnings: string[], w: WarningInputs): void {
+  const { setup, layout: L, all, components, peakCounts, chi2Red, spread, runs, lm } = w;
+  const nc = setup.nComponents;
+  const dt = setup.binWidthNs;
+  const names = L.names;
+  for (let k = 0; k < L.count; k++) {
+    if (!w.free[k] || !w.atBound[k]) continue;
+    if (k === L.background || k === L.scatter) continue; // 0 background or scatter simply means none
+    const isTau = L.lnTau.includes(k);
+    const shown = isTau ? Math.exp(all[k]) : k === L.irfSigma ? all[k] * FWHM_PER_SIGMA : all[k];
+    const unit = isTau || k === L.shift || k === L.irfCenter || k === L.irfSigma ? ' ns' : '';
+    const side = all[k] <= w.lower[k] ? 'lower' : 'upper';
+    warnings.push(`${names[k]} at ${side} bound ${fmt(shown)}${unit}`);
+  }
+  if (nc >= 2 && peakCounts < 1e4)
+    warnings.push(
+      `peak counts ${fmt(peakCounts)} are below the ≈10 000 usually needed to separate ${nc} lifetimes reliably`,
+    );
+  else if (nc === 1 && peakCounts < 100)
+    warnings.push(
+      `peak counts ${fmt(peakCounts)} are very low: the lifetime is uncertain and the χ² less meaningful`,
+    );
+  const irfFwhmNs =
+    setup.mode === 'gaussian'
+      ? all[L.irfSigma] * FWHM_PER_SIGMA
+      : setup.mode === 'measured'
+        ? setup.irfFwhmChannels * dt
+        : NaN;
+  if (setup.mode === 'measured' && setup.irfFwhmChannels < 2.5)
+    warnings.push(
+      `the IRF spans only ${fmt(setup.irfFwhmChannels)} channels (FWHM): its shape inside a channel has to be assumed, which can shift lifetimes by ~0.1 %; finer channels remove this`,
+    );
+  const windowNs = setup.channels * dt;
+  components.forEach((c, k) => {
+    if (irfFwhmNs > 0 && c.tauNs < irfFwhmNs / 10)
+      warnings.push(
+        `tau${k + 1}Ns ${fmt(c.tauNs)} ns is below a tenth of the IRF width (${fmt(irfFwhmNs)} ns FWHM): it depends on the IRF's exact shape`,
+      );
+    if (c.tauNs > windowNs)
+      warnings.push(`tau${k + 1}Ns ${fmt(c.tauNs)} ns is longer than the ${fmt(windowNs)} ns window`);
+  });
+  for (let a = 0; a < nc; a++)
+    for (let b = a + 1; b < nc; b++) {
+      const ea = components[a].tauErrNs;
+      const eb = components[b].tauErrNs;
+      const sep = Math.abs(components[a].tauNs - components[b].tauNs);
+      if (!(sep > 2 * Math.hypot(ea, eb)))
+        warnings.push(
+          `tau${a + 1}Ns and tau${b + 1}Ns are not resolved: they differ by ${fmt(sep)} ns, less than twice their combined error`,
+        );
+    }
+  if (chi2Red > 1 + 3 * spread)
+    warnings.push(
+      `chi2Reduced ${chi2Red.toFixed(3)} lies ${((chi2Red - 1) / spread).toFixed(1)} standard deviations (${spread.toFixed(3)}) above 1: the model does not describe the data within counting noise`,
+    );
+  if (runs.pValue < 0.01)
+    warnings.push(
+      `the residual signs form too ${runs.z < 0 ? 'few' : 'many'} runs (p = ${fmt(runs.pValue)}): systematic misfit`,
+    );
+  if (lm.stop !== 'converged')
+    warnings.push(`the optimiser stopped without converging (${lm.stop}) after ${lm.iterations} iterations`);
 }
 
 /**
