@@ -9,7 +9,8 @@ import { fitDecay } from '../fit/fitDecay.js';
 import { fitGlobal } from '../fit/fitGlobal.js';
 import type { FitOptions } from '../fit/options.js';
 import { alignIrfToDecay } from '../io/checkBinWidthsAgree.js';
-import { parseHistogramText } from '../io/parseHistogram.js';
+import { histogramFromTable, parseHistogramText } from '../io/parseHistogram.js';
+import { readTextTable, type TextTable } from '../io/textTable.js';
 import { parseSpectrumText } from '../io/parseSpectrum.js';
 import type { Histogram } from '../io/types.js';
 import { ratesFromFit } from '../physics/rates.js';
@@ -101,13 +102,36 @@ function parseHistogramCached(file: InputFile, ref: FileRef, cache: HistogramCac
   return h;
 }
 
+/** Tables of multi-decay files read last in this thread (see `decayHistogram`); a handful at most. */
+const recentTables = new Map<string, TextTable>();
+const TABLES_KEPT = 4;
+
+/**
+ * The decay of a sample, read as the command line reads `file#column`: messages name the file, and
+ * a file with several counts columns gives the histogram the name `file#column`. A manifest usually
+ * takes one column each of a multi-decay file in consecutive rows; the file's table is read once and
+ * kept (by path and content hash) for the next columns, instead of being read again for each.
+ */
+function decayHistogram(file: InputFile, ref: FileRef): Histogram {
+  const source = ref.path;
+  if (ref.column === undefined) return parseHistogramText(file.text, { source });
+  const key = `${ref.path}\u0000${file.sha256}`;
+  let table = recentTables.get(key);
+  if (!table) {
+    table = readTextTable(file.text, source);
+    recentTables.set(key, table);
+    if (recentTables.size > TABLES_KEPT) recentTables.delete(recentTables.keys().next().value as string);
+  }
+  return histogramFromTable(table, { source, column: ref.column });
+}
+
 /** Reads the decay and IRF of a sample and checks that their channels agree. */
 export function sampleHistograms(
   s: SampleSettings,
   inputs: SampleInputs,
   cache?: HistogramCache,
 ): { decay: Histogram; irf: Histogram | null } {
-  const decay = parseHistogramText(inputs.decay.text, { source: refText(s.decay), column: s.decay.column });
+  const decay = decayHistogram(inputs.decay, s.decay);
   let irf: Histogram | null = null;
   if (s.irf) {
     if (!inputs.irf) throw new InputError(`the IRF file of sample '${s.sample}' was not read`);

@@ -1,7 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import { sha256Hex } from '../../src/batch/hash.js';
 import { parseManifest } from '../../src/batch/manifest.js';
-import { failedSample, runGroup, runSample, type SampleInputs } from '../../src/batch/runSample.js';
+import {
+  failedSample,
+  runGroup,
+  runSample,
+  sampleHistograms,
+  type SampleInputs,
+} from '../../src/batch/runSample.js';
+import { parseHistogramText } from '../../src/io/parseHistogram.js';
 import { EMPTY_SETTINGS, resolveSampleSettings } from '../../src/batch/settings.js';
 import { formatHistogramTable } from '../../src/io/writeTable.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
@@ -106,5 +113,49 @@ describe('runSample', () => {
     expect(r.provenance.inputs).toEqual([
       { role: 'decay', path: 'junk.csv', sha256: sha256Hex('hello\nworld, again, more\n') },
     ]);
+  });
+
+  it('reads a multi-decay file once for its columns, as the command line reads file#column', () => {
+    // Three columns of one file: two of counts, one with a negative count in its second data row.
+    const text =
+      'time_ns,a,b,bad\n' +
+      Array.from(
+        { length: 64 },
+        (_, i) => `${(i * 0.05).toFixed(2)},${100 + i},${200 - i},${i === 1 ? -3 : 5}`,
+      ).join('\n') +
+      '\n';
+    const m = parseManifest('sample,decay,components\nA,f.csv#a,1\nB,f.csv#b,1\nC,f.csv#bad,1\n', {
+      source: 'm.csv',
+    });
+    const [a, b, c] = m.rows.map((row) => resolveSampleSettings(row, EMPTY_SETTINGS, 'm.csv'));
+    const inputs = { decay: file(text) };
+    const decayOf = (s: typeof a) => sampleHistograms(s, inputs).decay;
+    const ha = decayOf(a);
+    const hb = decayOf(b);
+    // Reference: each column parsed on its own from the text.
+    for (const [h, column] of [
+      [ha, 'a'],
+      [hb, 'b'],
+    ] as const) {
+      const alone = parseHistogramText(text, { source: 'f.csv', column });
+      expect(h.source).toBe(`f.csv#${column}`);
+      expect(Array.from(h.counts)).toEqual(Array.from(alone.counts));
+      expect(Array.from(h.timeNs)).toEqual(Array.from(alone.timeNs));
+      expect(h.binWidthNs).toBe(alone.binWidthNs);
+    }
+    let kept: unknown;
+    let alone: unknown;
+    try {
+      decayOf(c);
+    } catch (e) {
+      kept = e;
+    }
+    try {
+      parseHistogramText(text, { source: 'f.csv', column: 'bad' });
+    } catch (e) {
+      alone = e;
+    }
+    expect(String(kept)).toMatch(/^InputError: f\.csv/);
+    expect(String(kept)).toBe(String(alone));
   });
 });
