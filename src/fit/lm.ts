@@ -6,8 +6,9 @@
  * Why not ml-levenberg-marquardt for the decay fits (measured with test/bench/fit.ts and the NIST test,
  * on a shared 2-core machine): it differentiates by finite differences and allocates per iteration. On
  * the benchmark's 2-exponential, 4096-channel reconvolution (its own Jacobian over our reconvolved
- * curve, Neyman weights) it took 0.75–1 s per fit and stopped after 200 iterations 15–40 % away from
- * the true lifetimes, where this minimiser takes about 4 ms of CPU and 5–6 iterations. On NIST
+ * curve, Neyman weights) it took 0.25–1 s per fit and stopped after 200 iterations 15–40 % away from
+ * the true lifetimes, where a whole fit with this minimiser (start values, 3 iterations, errors and
+ * diagnostics) takes about 1.2 ms. On NIST
  * Lanczos3 it reached 0.9 and 1.8 correct digits from the two starts after 2000 iterations; this one
  * reaches the certified values to ≥ 6 digits. It also minimises only weighted least squares (no
  * Poisson likelihood) and reports neither covariance nor a stop reason. It stays in the NIST test as an
