@@ -190,7 +190,7 @@ export class DecayModel {
    * Basis curve of one lifetime at the IRF settings in `all` (full axis), into `out`. `sameIrf`: the
    * IRF parameters are those of the previous call, so the shifted IRF is reused.
    */
-  basisCurve(all: Float64Array, tauNs: number, out: Float64Array, sameIrf = false): void {
+  private basisCurve(all: Float64Array, tauNs: number, out: Float64Array, sameIrf = false): void {
     const s = this.setup;
     if (s.mode === 'measured' && s.irf) {
       if (!sameIrf) this.shiftMeasured(all, false);
