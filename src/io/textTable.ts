@@ -1,4 +1,4 @@
-import Papa from 'papaparse';
+import { createRequire } from 'node:module';
 import { InputError } from '../errors.js';
 import {
   COMMA_MARK,
@@ -9,6 +9,10 @@ import {
   scanEnd,
   scanNumericRows,
 } from './scanNumericRows.js';
+
+// The CSV package ships as CommonJS. Loaded through `require`, the engine need not scan its source for
+// named exports, as an ESM import of it would in every thread (tens of ms each, plus compiling the scanner).
+const Papa = createRequire(import.meta.url)('papaparse') as typeof import('papaparse');
 
 /**
  * The shared first stage of every importer: text → comment metadata + a rectangular table of cell
