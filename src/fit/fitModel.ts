@@ -287,68 +287,122 @@ const fmt = (v: number) =>
     ? v.toExponential(3)
     : Number(v.toPrecision(4)).toString();
 
-function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves: boolean): FitResult {
+/**
+ * The fit's parameters, covariance and flags in reported order (lifetimes ascending unless one was
+ * fixed or bounded by name). Internal units: ln τ, σ of the Gaussian IRF. Covariance entries of fixed
+ * parameters are 0; all are NaN when the Fisher information is singular.
+ */
+interface ReportedOrder {
+  all: Float64Array;
+  /** P × P, row-major. */
+  cov: Float64Array;
+  free: boolean[];
+  atBound: boolean[];
+  lower: number[];
+  singular: boolean;
+}
+
+/** Does any key of `o` name a lifetime (`tau1Ns` …)? */
+function namesLifetime(o: Record<string, unknown>): boolean {
+  for (const k in o) if (/^tau\dNs$/.test(k)) return true;
+  return false;
+}
+
+function reportedOrder(setup: FitSetup, run: FitRun): ReportedOrder {
   const { model, lm, free } = run;
   const L = model.layout;
   const P = L.count;
-  const nc = setup.nComponents;
-  const i0 = setup.fitStart;
-  const i1 = setup.fitEnd;
-  const nFit = i1 - i0;
-  const dt = setup.binWidthNs;
-  const counts = setup.counts;
-  const warnings: string[] = [...setup.notes];
-
-  // Covariance over all parameters (internal units: ln τ, σ of the Gaussian IRF); 0 for fixed ones.
   const F = free.length;
-  const invH = invertSymmetric(lm.hessian, F);
-  const cov = new Float64Array(P * P);
-  if (invH) {
-    for (let a = 0; a < F; a++) for (let b = 0; b < F; b++) cov[free[a] * P + free[b]] = 2 * invH[a * F + b];
-  } else {
-    cov.fill(NaN);
-    warnings.push(
-      'the Fisher information is singular: some parameters are not determined by the data, errors are unavailable',
-    );
-  }
-  let all = run.all;
+  const nc = setup.nComponents;
+  const raw = run.all;
 
-  // Ascending lifetimes unless one was fixed by name.
-  const anyTauFixed = [...Object.keys(setup.fix), ...Object.keys(setup.bounds)].some((k) =>
-    /^tau\dNs$/.test(k),
-  );
-  const order = Array.from({ length: nc }, (_, j) => j);
-  if (!anyTauFixed) order.sort((p, q) => all[L.lnTau[p]] - all[L.lnTau[q]]);
-  const perm = Array.from({ length: P }, (_, k) => k);
+  // Component order: ascending ln τ by insertion (stable, and nc ≤ 4).
+  const order = new Int32Array(nc);
+  for (let j = 0; j < nc; j++) order[j] = j;
+  if (!namesLifetime(setup.fix) && !namesLifetime(setup.bounds)) {
+    for (let a = 1; a < nc; a++) {
+      const o = order[a];
+      const t = raw[L.lnTau[o]];
+      let b = a - 1;
+      while (b >= 0 && raw[L.lnTau[order[b]]] > t) {
+        order[b + 1] = order[b];
+        b--;
+      }
+      order[b + 1] = o;
+    }
+  }
+  // perm[k]: the internal index of reported parameter k.
+  const perm = new Int32Array(P);
+  for (let k = 0; k < P; k++) perm[k] = k;
   for (let j = 0; j < nc; j++) {
     perm[L.amplitude[j]] = L.amplitude[order[j]];
     perm[L.lnTau[j]] = L.lnTau[order[j]];
   }
-  all = Float64Array.from(perm, (k) => all[k]);
-  const covP = new Float64Array(P * P);
-  for (let a = 0; a < P; a++) for (let b = 0; b < P; b++) covP[a * P + b] = cov[perm[a] * P + perm[b]];
-  const atBoundAll = new Array<boolean>(P).fill(false);
-  free.forEach((k, f) => (atBoundAll[k] = lm.atBound[f]));
-  const atBound = perm.map((k) => atBoundAll[k]);
-  const isFree = new Array<boolean>(P).fill(false);
-  free.forEach((k) => (isFree[k] = true));
-  const freeP = perm.map((k) => isFree[k]);
+  // Free position of each internal parameter (−1 when fixed).
+  const freeAt = new Int32Array(P).fill(-1);
+  for (let f = 0; f < F; f++) freeAt[free[f]] = f;
 
-  const varOf = (g: Float64Array) => {
-    let v = 0;
-    for (let a = 0; a < P; a++) {
-      if (g[a] === 0) continue;
-      for (let b = 0; b < P; b++) if (g[b] !== 0) v += g[a] * covP[a * P + b] * g[b];
+  const invH = invertSymmetric(lm.hessian, F);
+  const all = new Float64Array(P);
+  const cov = new Float64Array(P * P);
+  const isFree = new Array<boolean>(P);
+  const atBound = new Array<boolean>(P);
+  const lower = new Array<number>(P);
+  for (let a = 0; a < P; a++) {
+    const fa = freeAt[perm[a]];
+    all[a] = raw[perm[a]];
+    isFree[a] = fa >= 0;
+    atBound[a] = fa >= 0 && lm.atBound[fa];
+    lower[a] = run.lower[perm[a]];
+    for (let b = 0; b < P; b++) {
+      const fb = freeAt[perm[b]];
+      cov[a * P + b] = !invH ? NaN : fa >= 0 && fb >= 0 ? 2 * invH[fa * F + fb] : 0;
     }
-    return v;
-  };
-  const sd = (k: number) => Math.sqrt(Math.max(covP[k * P + k], 0));
+  }
+  return { all, cov, free: isFree, atBound, lower, singular: !invH };
+}
 
-  const amps = Array.from({ length: nc }, (_, j) => all[L.amplitude[j]]);
-  const taus = Array.from({ length: nc }, (_, j) => Math.exp(all[L.lnTau[j]]));
-  const sumA = amps.reduce((s, a) => s + a, 0);
-  const V = amps.reduce((s, a, j) => s + a * taus[j], 0);
-  const U = amps.reduce((s, a, j) => s + a * taus[j] * taus[j], 0);
+/** gᵀ·cov·g over the non-zero entries of the gradient g (delta method). */
+function varianceOf(g: Float64Array, cov: Float64Array): number {
+  const P = g.length;
+  let v = 0;
+  for (let a = 0; a < P; a++) {
+    if (g[a] === 0) continue;
+    for (let b = 0; b < P; b++) if (g[b] !== 0) v += g[a] * cov[a * P + b] * g[b];
+  }
+  return v;
+}
+
+/** Standard deviation of parameter k (0 when fixed). */
+function sdOf(cov: Float64Array, P: number, k: number): number {
+  return Math.sqrt(Math.max(cov[k * P + k], 0));
+}
+
+interface LifetimeSummary {
+  components: ComponentResult[];
+  tauAmpNs: number;
+  tauAmpErrNs: number;
+  tauIntNs: number;
+  tauIntErrNs: number;
+}
+
+/** Components and both average lifetimes, with errors by the delta method on the full covariance. */
+function lifetimeSummary(setup: FitSetup, L: DecayModel['layout'], o: ReportedOrder): LifetimeSummary {
+  const nc = setup.nComponents;
+  const P = L.count;
+  const { all, cov } = o;
+  const amps = new Float64Array(nc);
+  const taus = new Float64Array(nc);
+  let sumA = 0;
+  let V = 0;
+  let U = 0;
+  for (let j = 0; j < nc; j++) {
+    amps[j] = all[L.amplitude[j]];
+    taus[j] = Math.exp(all[L.lnTau[j]]);
+    sumA += amps[j];
+    V += amps[j] * taus[j];
+    U += amps[j] * taus[j] * taus[j];
+  }
   const tauAmp = V / sumA;
   const tauInt = U / V;
   const g = new Float64Array(P);
@@ -356,13 +410,13 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     g[L.amplitude[j]] = (taus[j] - tauAmp) / sumA;
     g[L.lnTau[j]] = (amps[j] * taus[j]) / sumA;
   }
-  const tauAmpErr = Math.sqrt(varOf(g));
+  const tauAmpErr = Math.sqrt(varianceOf(g, cov));
   g.fill(0);
   for (let j = 0; j < nc; j++) {
     g[L.amplitude[j]] = (taus[j] * taus[j] - tauInt * taus[j]) / V;
     g[L.lnTau[j]] = (2 * amps[j] * taus[j] * taus[j] - tauInt * amps[j] * taus[j]) / V;
   }
-  const tauIntErr = Math.sqrt(varOf(g));
+  const tauIntErr = Math.sqrt(varianceOf(g, cov));
 
   const components: ComponentResult[] = [];
   for (let k = 0; k < nc; k++) {
@@ -372,29 +426,82 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
       g[L.amplitude[j]] = ((j === k ? taus[k] : 0) - fk * taus[j]) / V;
       g[L.lnTau[j]] = ((j === k ? amps[k] * taus[k] : 0) - fk * amps[j] * taus[j]) / V;
     }
-    const tauFixed = !freeP[L.lnTau[k]];
+    const tauFixed = !o.free[L.lnTau[k]];
     const c: ComponentResult = {
       tauNs: tauFixed ? (setup.fix[`tau${k + 1}Ns`] ?? taus[k]) : taus[k],
-      tauErrNs: tauFixed ? 0 : taus[k] * sd(L.lnTau[k]),
+      tauErrNs: tauFixed ? 0 : taus[k] * sdOf(cov, P, L.lnTau[k]),
       amplitude: amps[k],
-      amplitudeErr: sd(L.amplitude[k]),
+      amplitudeErr: sdOf(cov, P, L.amplitude[k]),
       intensityFraction: fk,
-      intensityFractionErr: Math.sqrt(varOf(g)),
+      intensityFractionErr: Math.sqrt(varianceOf(g, cov)),
       amplitudeFraction: amps[k] / sumA,
     };
     if (tauFixed) c.fixed = true;
     components.push(c);
   }
+  return { components, tauAmpNs: tauAmp, tauAmpErrNs: tauAmpErr, tauIntNs: tauInt, tauIntErrNs: tauIntErr };
+}
+
+/** Covariance of the free parameters in reported units (τ in ns, IRF width as FWHM). */
+function reportedCovariance(L: DecayModel['layout'], o: ReportedOrder): FitResult['covariance'] {
+  const P = L.count;
+  const scale = new Float64Array(P);
+  for (let k = 0; k < P; k++) scale[k] = k === L.irfSigma ? FWHM_PER_SIGMA : 1;
+  for (let j = 0; j < L.lnTau.length; j++) scale[L.lnTau[j]] = Math.exp(o.all[L.lnTau[j]]);
+  const names: string[] = [];
+  const matrix: number[][] = [];
+  for (let a = 0; a < P; a++) {
+    if (!o.free[a]) continue;
+    names.push(L.names[a]);
+    const row: number[] = [];
+    for (let b = 0; b < P; b++) if (o.free[b]) row.push(o.cov[a * P + b] * scale[a] * scale[b]);
+    matrix.push(row);
+  }
+  return { names, matrix };
+}
+
+/** Counting statistics over the fit range. */
+function peakAndTotal(data: Float64Array): { peak: number; total: number } {
+  let peak = 0;
+  let total = 0;
+  for (let i = 0; i < data.length; i++) {
+    total += data[i];
+    if (data[i] > peak) peak = data[i];
+  }
+  return { peak, total };
+}
+
+/**
+ * The result object of a finished fit. Kept to plain loops in short functions: it runs once per
+ * decay, and in a batch each thread compiles it anew, so what it asks of the JIT shows in the wall time.
+ */
+function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves: boolean): FitResult {
+  const { model, lm } = run;
+  const L = model.layout;
+  const P = L.count;
+  const i0 = setup.fitStart;
+  const i1 = setup.fitEnd;
+  const nFit = i1 - i0;
+  const dt = setup.binWidthNs;
+  const F = run.free.length;
+  const warnings: string[] = setup.notes.slice();
+
+  const o = reportedOrder(setup, run);
+  if (o.singular)
+    warnings.push(
+      'the Fisher information is singular: some parameters are not determined by the data, errors are unavailable',
+    );
+  const { all, cov } = o;
+  const life = lifetimeSummary(setup, L, o);
 
   // Statistics over the fit range.
-  const data = counts.subarray(i0, i1);
-  const m = lm.model;
+  const data = setup.counts.subarray(i0, i1);
   const dof = nFit - F;
   const resid = new Float64Array(nFit);
   // Under the Poisson statistic the optimiser's per-channel losses are the deviance terms already.
   const { chi2, chi2Spread, deviance } = residualStatistics(
     data,
-    m,
+    lm.model,
     setup.statistic,
     resid,
     setup.statistic === 'poisson' ? lm.pointLoss : null,
@@ -402,25 +509,18 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
   const dw = durbinWatson(resid);
   const runs = runsTest(resid);
   const ic = informationCriteria(lm.objective, F, nFit);
-
-  let peakCounts = 0;
-  let totalCounts = 0;
-  for (let i = 0; i < nFit; i++) {
-    totalCounts += data[i];
-    if (data[i] > peakCounts) peakCounts = data[i];
-  }
+  const counted = peakAndTotal(data);
   const chi2Red = chi2 / dof;
   const spread = Math.sqrt(chi2Spread) / dof;
-  const lowerP = perm.map((k) => run.lower[k]);
   addWarnings(warnings, {
     setup,
     layout: L,
     all,
-    lower: lowerP,
-    free: freeP,
-    atBound,
-    components,
-    peakCounts,
+    lower: o.lower,
+    free: o.free,
+    atBound: o.atBound,
+    components: life.components,
+    peakCounts: counted.peak,
     chi2Red,
     spread,
     runs,
@@ -429,34 +529,23 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
 
   const curves = withCurves
     ? plotCurves(setup, model.irfCurve(all), fullAxisModel(run), resid, decay)
-    : {
-        timeNs: [],
-        data: [],
-        model: [],
-        irf: [],
-        weightedResiduals: [],
-        autocorrelation: [],
-        fitStartIndex: i0,
-        fitEndIndex: i1 - 1,
-      };
-  const fixedOut: Record<string, number> = {};
-  for (const [k, v] of Object.entries(setup.fix)) fixedOut[k] = v;
+    : emptyCurves(i0, i1);
 
   const result: FitResult = {
     schemaVersion: SCHEMA_VERSION,
     statistic: setup.statistic,
-    nComponents: nc,
-    components,
-    tauAmpAvgNs: tauAmp,
-    tauAmpAvgErrNs: tauAmpErr,
-    tauIntAvgNs: tauInt,
-    tauIntAvgErrNs: tauIntErr,
+    nComponents: setup.nComponents,
+    components: life.components,
+    tauAmpAvgNs: life.tauAmpNs,
+    tauAmpAvgErrNs: life.tauAmpErrNs,
+    tauIntAvgNs: life.tauIntNs,
+    tauIntAvgErrNs: life.tauIntErrNs,
     shiftNs: L.shift >= 0 ? all[L.shift] : 0,
-    shiftErrNs: L.shift >= 0 ? sd(L.shift) : 0,
+    shiftErrNs: L.shift >= 0 ? sdOf(cov, P, L.shift) : 0,
     background: all[L.background],
-    backgroundErr: sd(L.background),
+    backgroundErr: sdOf(cov, P, L.background),
     scatter: L.scatter >= 0 ? all[L.scatter] : 0,
-    scatterErr: L.scatter >= 0 ? sd(L.scatter) : 0,
+    scatterErr: L.scatter >= 0 ? sdOf(cov, P, L.scatter) : 0,
     chi2Reduced: chi2Red,
     chi2,
     deviance,
@@ -475,26 +564,33 @@ function buildResult(setup: FitSetup, run: FitRun, decay: Histogram, withCurves:
     rangeNs: [setup.firstEdgeNs + i0 * dt, setup.firstEdgeNs + i1 * dt],
     periodNs: setup.periodNs,
     binWidthNs: dt,
-    peakCounts,
-    totalCounts,
-    fixed: fixedOut,
+    peakCounts: counted.peak,
+    totalCounts: counted.total,
+    fixed: { ...setup.fix },
     curves,
   };
   if (setup.mode === 'gaussian') {
     result.irfFwhmNs = all[L.irfSigma] * FWHM_PER_SIGMA;
-    result.irfFwhmErrNs = sd(L.irfSigma) * FWHM_PER_SIGMA;
+    result.irfFwhmErrNs = sdOf(cov, P, L.irfSigma) * FWHM_PER_SIGMA;
     result.irfCenterNs = all[L.irfCenter];
-    result.irfCenterErrNs = sd(L.irfCenter);
+    result.irfCenterErrNs = sdOf(cov, P, L.irfCenter);
   }
-  // Covariance of the free parameters in reported units (τ in ns, IRF width as FWHM).
-  const toReported = (k: number) =>
-    L.lnTau.includes(k) ? Math.exp(all[k]) : k === L.irfSigma ? FWHM_PER_SIGMA : 1;
-  const freeSorted = Array.from({ length: P }, (_, k) => k).filter((k) => freeP[k]);
-  result.covariance = {
-    names: freeSorted.map((k) => L.names[k]),
-    matrix: freeSorted.map((a) => freeSorted.map((b) => covP[a * P + b] * toReported(a) * toReported(b))),
-  };
+  result.covariance = reportedCovariance(L, o);
   return result;
+}
+
+/** Curves of a result written without them: empty arrays, the fit range kept. */
+function emptyCurves(i0: number, i1: number): FitResult['curves'] {
+  return {
+    timeNs: [],
+    data: [],
+    model: [],
+    irf: [],
+    weightedResiduals: [],
+    autocorrelation: [],
+    fitStartIndex: i0,
+    fitEndIndex: i1 - 1,
+  };
 }
 
 /** What `addWarnings` needs to know of a finished fit (parameters in reported order). */

@@ -108,6 +108,161 @@ interface GridOptions {
   keep: number;
 }
 
+/** Grid steps k of τ_tail·2^k: for one component, and for more. */
+const STEPS_ONE = [-4, -3, -2, -1, 0, 1, 2, 3, 4];
+const STEPS_MANY = [-6, -5.25, -4.5, -3.75, -3, -2.25, -1.5, -0.75, 0, 0.5, 1, 1.75, 2.5];
+
+/**
+ * Grid lifetimes, ascending: τ_tail·2^k clamped to [lo, hi], a point dropped when it does not exceed
+ * the one before it, and doubled past the last until there are at least `minLength`.
+ */
+function lifetimeGrid(nc: number, tauTailNs: number, lo: number, hi: number, minLength: number): number[] {
+  const steps = nc === 1 ? STEPS_ONE : STEPS_MANY;
+  const grid: number[] = [];
+  let prev = NaN;
+  for (let k = 0; k < steps.length; k++) {
+    const t = Math.min(hi, Math.max(lo, tauTailNs * 2 ** steps[k]));
+    if (k === 0 || t > prev * 1.0001) grid.push(t);
+    prev = t;
+  }
+  while (grid.length < minLength) grid.push(grid[grid.length - 1] * 2);
+  return grid;
+}
+
+/**
+ * The weighted linear problem of the grid search over its columns (grid bases, fixed-lifetime bases,
+ * background, scatter) and the work arrays of one combination's solve.
+ */
+interface GridProblem {
+  nc: number;
+  allowNegative: boolean;
+  /** Column count of the Gram matrix. */
+  C: number;
+  gram: Float64Array;
+  rhs: Float64Array;
+  yWy: number;
+  A: Float64Array;
+  Lw: Float64Array;
+  b: Float64Array;
+  sol: Float64Array;
+  /** Columns of the combination being solved. */
+  cols: Int32Array;
+  active: Uint8Array;
+  idx: Int32Array;
+  /** Coefficients of the last solve, per column of `cols`. */
+  coef: Float64Array;
+}
+
+function gridProblem(
+  nc: number,
+  allowNegative: boolean,
+  C: number,
+  gram: Float64Array,
+  rhs: Float64Array,
+  yWy: number,
+): GridProblem {
+  const maxP = nc + 2;
+  return {
+    nc,
+    allowNegative,
+    C,
+    gram,
+    rhs,
+    yWy,
+    A: new Float64Array(maxP * maxP),
+    Lw: new Float64Array(maxP * maxP),
+    b: new Float64Array(maxP),
+    sol: new Float64Array(maxP),
+    cols: new Int32Array(maxP),
+    active: new Uint8Array(maxP),
+    idx: new Int32Array(maxP),
+    coef: new Float64Array(maxP),
+  };
+}
+
+/**
+ * Non-negative weighted least squares of one combination (its K columns in `g.cols`) by active set:
+ * the most negative coefficient that must not be negative is dropped and the rest solved again.
+ * Leaves the coefficients in `g.coef` and returns χ² = yᵀWy − 2cᵀr + cᵀGc, or NaN.
+ */
+function solveCombination(g: GridProblem, K: number): number {
+  const { A, b, sol, Lw, cols, active, idx, coef, gram, rhs, C } = g;
+  active.fill(1, 0, K);
+  for (let attempt = 0; attempt <= K; attempt++) {
+    let P = 0;
+    for (let k = 0; k < K; k++) if (active[k]) idx[P++] = k;
+    for (let a = 0; a < P; a++) {
+      b[a] = rhs[cols[idx[a]]];
+      for (let c = 0; c < P; c++) A[a * P + c] = gram[cols[idx[a]] * C + cols[idx[c]]];
+      A[a * P + a] *= 1 + 1e-12;
+    }
+    coef.fill(0);
+    if (P > 0 && !choleskySolve(A, b, sol, Lw, P)) return NaN;
+    for (let a = 0; a < P; a++) coef[idx[a]] = sol[a];
+    let worst = -1;
+    for (let k = 0; k < K; k++) {
+      const mayBeNegative = k < g.nc && g.allowNegative;
+      if (active[k] && !mayBeNegative && coef[k] < 0 && (worst < 0 || coef[k] < coef[worst])) worst = k;
+    }
+    if (worst < 0) {
+      let chi2 = g.yWy;
+      for (let a = 0; a < K; a++) {
+        chi2 -= 2 * coef[a] * rhs[cols[a]];
+        for (let c = 0; c < K; c++) chi2 += coef[a] * coef[c] * gram[cols[a] * C + cols[c]];
+      }
+      return chi2;
+    }
+    active[worst] = 0;
+  }
+  return NaN;
+}
+
+/** Where the columns of the grid problem sit. */
+interface ColumnPlan {
+  /** Grid column of each free component slot, per combination: combos[c·F … c·F + F − 1]. */
+  combos: Int32Array;
+  F: number;
+  /** Column of each component whose lifetime is fixed (−1 for free ones). */
+  fixedCol: Int32Array;
+  bgCol: number;
+  scCol: number;
+}
+
+/** Fills `g.cols` with combination c's columns (per component, then background and scatter); returns K. */
+function setColumns(g: GridProblem, plan: ColumnPlan, c: number): number {
+  const cols = g.cols;
+  let f = c * plan.F;
+  let K = 0;
+  for (let j = 0; j < g.nc; j++) cols[K++] = plan.fixedCol[j] >= 0 ? plan.fixedCol[j] : plan.combos[f++];
+  if (plan.bgCol >= 0) cols[K++] = plan.bgCol;
+  if (plan.scCol >= 0) cols[K++] = plan.scCol;
+  return K;
+}
+
+/** Does every grid index of combination p lie within one step of combination q's? */
+function nearCombination(combos: Int32Array, F: number, p: number, q: number): boolean {
+  for (let k = 0; k < F; k++) if (Math.abs(combos[p * F + k] - combos[q * F + k]) > 1) return false;
+  return true;
+}
+
+/**
+ * Combinations by ascending χ², the first `keep` that differ: the later starts serve when the first
+ * fit looks doubtful, so a combination whose every lifetime lies within one grid step of an earlier
+ * pick is passed over.
+ */
+function pickCombinations(chi2s: Float64Array, combos: Int32Array, F: number, keep: number): number[] {
+  const order: number[] = [];
+  for (let c = 0; c < chi2s.length; c++) if (!Number.isNaN(chi2s[c])) order.push(c);
+  order.sort((p, q) => chi2s[p] - chi2s[q]);
+  const picked: number[] = [];
+  for (let i = 0; i < order.length && picked.length < keep; i++) {
+    let near = false;
+    for (let j = 0; j < picked.length && !near; j++) near = nearCombination(combos, F, picked[j], order[i]);
+    if (!near) picked.push(order[i]);
+  }
+  return picked;
+}
+
 /**
  * Ranks lifetime combinations on the grid by the weighted χ² of their linear solve and returns the
  * `keep` best as full parameter vectors (IRF parameters taken from `base`).
@@ -126,21 +281,20 @@ export function gridStarts(
   const nFit = i1 - i0;
 
   // Grid lifetimes for the free components, ascending.
-  const freeSlots: number[] = [];
-  for (let j = 0; j < nc; j++) if (!(opts.fixedTauNs[j] > 0)) freeSlots.push(j);
-  const lo = Math.min(...opts.tauMinNs);
-  const hi = Math.max(...opts.tauMaxNs);
-  let grid: number[];
+  let F = 0;
+  let fixedCount = 0;
+  const fixedCol = new Int32Array(nc).fill(-1);
+  for (let j = 0; j < nc; j++) {
+    if (opts.fixedTauNs[j] > 0) fixedCount++;
+    else F++;
+  }
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let j = 0; j < opts.tauMinNs.length; j++) lo = Math.min(lo, opts.tauMinNs[j]);
+  for (let j = 0; j < opts.tauMaxNs.length; j++) hi = Math.max(hi, opts.tauMaxNs[j]);
   // The log-slope can mislead both ways (a Gaussian IRF's own tail looks like a very short lifetime,
   // a background slope like a long one), so the grid reaches well beyond it on both sides.
-  if (nc === 1) grid = [-4, -3, -2, -1, 0, 1, 2, 3, 4].map((k) => opts.tauTailNs * 2 ** k);
-  else
-    grid = [-6, -5.25, -4.5, -3.75, -3, -2.25, -1.5, -0.75, 0, 0.5, 1, 1.75, 2.5].map(
-      (k) => opts.tauTailNs * 2 ** k,
-    );
-  grid = grid.map((t) => Math.min(hi, Math.max(lo, t)));
-  grid = grid.filter((t, k) => k === 0 || t > grid[k - 1] * 1.0001);
-  while (grid.length < freeSlots.length) grid.push(grid[grid.length - 1] * 2);
+  const grid = lifetimeGrid(nc, opts.tauTailNs, lo, hi, F);
 
   // Starting values need no more than ~500 points: the fit range is cut into bins of `width`
   // channels (the last one may be shorter) and every curve and the counts are taken as bin means.
@@ -149,14 +303,12 @@ export function gridStarts(
   // fixed-lifetime bases, background, scatter.
   const bins: ChannelBins = { from: i0, to: i1, width: Math.max(1, Math.floor(nFit / GRID_POINTS)) };
   const M = binCount(bins);
-  const fixedCount = opts.fixedTauNs.filter((t) => t > 0).length;
   const bgCol = opts.fixedBackground === null ? grid.length + fixedCount : -1;
   const irfCurve = L.scatter >= 0 ? model.scatterCurve(base) : null;
   const scCol = irfCurve && opts.fixedScatter === null ? grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) : -1;
   const C = grid.length + fixedCount + (bgCol >= 0 ? 1 : 0) + (scCol >= 0 ? 1 : 0);
   const flat = scratch(0, C * M);
   for (let k = 0; k < grid.length; k++) model.basisBinMeans(base, grid[k], bins, flat, k * M, k > 0);
-  const fixedCol: number[] = [];
   let next = grid.length;
   for (let j = 0; j < nc; j++) {
     if (opts.fixedTauNs[j] > 0) {
@@ -189,101 +341,52 @@ export function gridStarts(
   // Gram matrix and projection of the data in one pass.
   weightedGram(flat, C, M, w, wy, gram, rhs, bgCol);
 
-  // Every ascending choice of grid lifetimes for the free slots, packed: combination c is
-  // combos[c·F … c·F + F − 1].
-  const F = freeSlots.length;
+  // Every ascending choice of grid lifetimes for the free slots.
   const combos = ascendingChoices(grid.length, F);
   const comboCount = F > 0 ? combos.length / F : 1;
-  const comboAt = (c: number) => combos.subarray(c * F, c * F + F);
-
-  const maxP = nc + 2;
-  const A = new Float64Array(maxP * maxP);
-  const Lw = new Float64Array(maxP * maxP);
-  const b = new Float64Array(maxP);
-  const sol = new Float64Array(maxP);
-  const cols = new Int32Array(maxP);
-  const active = new Uint8Array(maxP);
-  const idx = new Int32Array(maxP);
-  const coef = new Float64Array(maxP);
-  // Non-negative weighted least squares of one combination (columns in `cols`, count K) by active
-  // set: the most negative coefficient that must not be negative is dropped and the rest solved
-  // again. Leaves the coefficients in `coef` and returns χ² = yᵀWy − 2cᵀr + cᵀGc, or NaN.
-  const solve = (K: number): number => {
-    active.fill(1, 0, K);
-    for (let attempt = 0; attempt <= K; attempt++) {
-      let P = 0;
-      for (let k = 0; k < K; k++) if (active[k]) idx[P++] = k;
-      for (let a = 0; a < P; a++) {
-        b[a] = rhs[cols[idx[a]]];
-        for (let c = 0; c < P; c++) A[a * P + c] = gram[cols[idx[a]] * C + cols[idx[c]]];
-        A[a * P + a] *= 1 + 1e-12;
-      }
-      coef.fill(0);
-      if (P > 0 && !choleskySolve(A, b, sol, Lw, P)) return NaN;
-      for (let a = 0; a < P; a++) coef[idx[a]] = sol[a];
-      let worst = -1;
-      for (let k = 0; k < K; k++) {
-        const mayBeNegative = k < nc && opts.allowNegative;
-        if (active[k] && !mayBeNegative && coef[k] < 0 && (worst < 0 || coef[k] < coef[worst])) worst = k;
-      }
-      if (worst < 0) {
-        let chi2 = yWy;
-        for (let a = 0; a < K; a++) {
-          chi2 -= 2 * coef[a] * rhs[cols[a]];
-          for (let c = 0; c < K; c++) chi2 += coef[a] * coef[c] * gram[cols[a] * C + cols[c]];
-        }
-        return chi2;
-      }
-      active[worst] = 0;
-    }
-    return NaN;
-  };
-  // Column per component, then background and scatter.
-  const setColumns = (c: number): number => {
-    let f = c * F;
-    let K = 0;
-    for (let j = 0; j < nc; j++) cols[K++] = opts.fixedTauNs[j] > 0 ? fixedCol[j] : combos[f++];
-    if (bgCol >= 0) cols[K++] = bgCol;
-    if (scCol >= 0) cols[K++] = scCol;
-    return K;
-  };
+  const plan: ColumnPlan = { combos, F, fixedCol, bgCol, scCol };
+  const g = gridProblem(nc, opts.allowNegative, C, gram, rhs, yWy);
   const chi2s = new Float64Array(comboCount);
-  const order: number[] = [];
-  for (let c = 0; c < comboCount; c++) {
-    chi2s[c] = solve(setColumns(c));
-    if (!Number.isNaN(chi2s[c])) order.push(c);
-  }
-  order.sort((p, q) => chi2s[p] - chi2s[q]);
+  for (let c = 0; c < comboCount; c++) chi2s[c] = solveCombination(g, setColumns(g, plan, c));
+
   // Parameter vectors for the best few only: solved again, which is cheap.
   const results: StartCandidate[] = [];
-  // The later starts serve when the first fit looks doubtful, so they must differ from it: a
-  // combination whose every lifetime lies within one grid step of an earlier pick is passed over.
-  const picked: number[] = [];
-  for (const c of order) {
-    if (picked.length >= opts.keep) break;
-    const combo = comboAt(c);
-    const near = picked.some((q) => comboAt(q).every((g, k) => Math.abs(g - combo[k]) <= 1));
-    if (!near) picked.push(c);
-  }
-  for (const c of picked) {
-    const combo = comboAt(c);
-    const K = setColumns(c);
-    solve(K);
-    const params = Float64Array.from(base);
-    let maxAmp = 0;
-    for (let j = 0; j < nc; j++) maxAmp = Math.max(maxAmp, Math.abs(coef[j]));
-    let f = 0;
-    for (let j = 0; j < nc; j++) {
-      const tau = opts.fixedTauNs[j] > 0 ? opts.fixedTauNs[j] : grid[combo[f++]];
-      params[L.lnTau[j]] = Math.log(tau);
-      // A component switched off by the linear solve restarts small but alive, so that it can move.
-      params[L.amplitude[j]] = coef[j] !== 0 ? coef[j] : 0.01 * maxAmp || 1;
-    }
-    // A background of exactly 0 would make the model 0 under stray counts before the pulse (an
-    // impossible Poisson model); start it slightly above.
-    if (bgCol >= 0) params[L.background] = Math.max(coef[nc], 1e-2);
-    if (scCol >= 0) params[L.scatter] = Math.max(coef[K - 1], 0);
-    results.push({ params, chi2: chi2s[c] });
+  for (const c of pickCombinations(chi2s, combos, F, opts.keep)) {
+    const K = setColumns(g, plan, c);
+    solveCombination(g, K);
+    results.push({
+      params: startVector(L, base, opts, grid, combos.subarray(c * F, c * F + F), g.coef, plan, K),
+      chi2: chi2s[c],
+    });
   }
   return results;
+}
+
+/** A full parameter vector from a combination's grid lifetimes and its solved coefficients. */
+function startVector(
+  L: DecayModel['layout'],
+  base: Float64Array,
+  opts: GridOptions,
+  grid: number[],
+  combo: Int32Array,
+  coef: Float64Array,
+  plan: ColumnPlan,
+  K: number,
+): Float64Array {
+  const nc = L.lnTau.length;
+  const params = base.slice();
+  let maxAmp = 0;
+  for (let j = 0; j < nc; j++) maxAmp = Math.max(maxAmp, Math.abs(coef[j]));
+  let f = 0;
+  for (let j = 0; j < nc; j++) {
+    const tau = opts.fixedTauNs[j] > 0 ? opts.fixedTauNs[j] : grid[combo[f++]];
+    params[L.lnTau[j]] = Math.log(tau);
+    // A component switched off by the linear solve restarts small but alive, so that it can move.
+    params[L.amplitude[j]] = coef[j] !== 0 ? coef[j] : 0.01 * maxAmp || 1;
+  }
+  // A background of exactly 0 would make the model 0 under stray counts before the pulse (an
+  // impossible Poisson model); start it slightly above.
+  if (plan.bgCol >= 0) params[L.background] = Math.max(coef[nc], 1e-2);
+  if (plan.scCol >= 0) params[L.scatter] = Math.max(coef[K - 1], 0);
+  return params;
 }
