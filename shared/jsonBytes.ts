@@ -26,6 +26,19 @@ const encoder = new TextEncoder();
 const NUMBER_ROOM = 32;
 const NULL_BYTES = [110, 117, 108, 108];
 
+/** "00" … "99" as character codes, for writing two digits at a time. */
+const DIGIT_PAIRS = new Uint8Array(200);
+for (let i = 0; i < 100; i++) {
+  DIGIT_PAIRS[2 * i] = ZERO + Math.floor(i / 10);
+  DIGIT_PAIRS[2 * i + 1] = ZERO + (i % 10);
+}
+
+/** Number of decimal digits of m (0 ≤ m < 2^31). */
+function digitCount(m: number): number {
+  if (m < 100000) return m < 100 ? (m < 10 ? 1 : 2) : m < 1000 ? 3 : m < 10000 ? 4 : 5;
+  return m < 10000000 ? (m < 1000000 ? 6 : 7) : m < 100000000 ? 8 : m < 1000000000 ? 9 : 10;
+}
+
 /**
  * Writes the whole number m (0 ≤ m < 2^31) divided by 10^decimals into `buf` at `at`, without
  * trailing zeros after the point, and returns where it ends. The caller has made room.
@@ -39,21 +52,36 @@ function putScaled(buf: Uint8Array, at: number, negative: boolean, m: number, de
     m = q;
     decimals--;
   }
-  let n = 1;
-  while (n < 10 && m >= POW10[n]) n++;
-  const end = at + (negative ? 1 : 0) + Math.max(1, n - decimals) + (decimals > 0 ? decimals + 1 : 0);
+  const n = digitCount(m);
+  const end = at + (negative ? 1 : 0) + (n > decimals ? n - decimals : 1) + (decimals > 0 ? decimals + 1 : 0);
   let p = end;
-  for (let i = 0; i < decimals; i++) {
+  // Digits after the point (with the zeros that lead them when m has fewer digits), two at a time.
+  let d = decimals;
+  while (d >= 2) {
+    const q = (m / 100) | 0;
+    const r = (m - q * 100) << 1;
+    buf[--p] = DIGIT_PAIRS[r + 1];
+    buf[--p] = DIGIT_PAIRS[r];
+    m = q;
+    d -= 2;
+  }
+  if (d === 1) {
     const q = (m / 10) | 0;
     buf[--p] = ZERO + m - q * 10;
     m = q;
   }
   if (decimals > 0) buf[--p] = DOT;
-  do {
-    const q = (m / 10) | 0;
-    buf[--p] = ZERO + m - q * 10;
+  while (m >= 100) {
+    const q = (m / 100) | 0;
+    const r = (m - q * 100) << 1;
+    buf[--p] = DIGIT_PAIRS[r + 1];
+    buf[--p] = DIGIT_PAIRS[r];
     m = q;
-  } while (m > 0);
+  }
+  if (m >= 10) {
+    buf[--p] = DIGIT_PAIRS[(m << 1) + 1];
+    buf[--p] = DIGIT_PAIRS[m << 1];
+  } else buf[--p] = ZERO + m;
   if (negative) buf[--p] = MINUS;
   return end;
 }
@@ -300,20 +328,56 @@ export class JsonBytes {
     this.room(2 + count * NUMBER_ROOM);
     let at = this.length;
     this.buf[at++] = 91;
+    const carried = POW10[digits];
+    // The single-value writer's steps, kept in this loop for the common layouts (plain decimals,
+    // below 2^31 once scaled); the rest goes through `significant` itself.
+    let e = this.lastExponent;
+    let lo = pow10(e);
+    let hi = pow10(e + 1);
     for (let i = 0; i < count; i++) {
       const buf = this.buf;
       if (i) buf[at++] = 44;
       const v = values[i];
-      if (v === null || !Number.isFinite(v)) at = putNull(buf, at);
-      else if (Math.abs(v) < zeroBelow || v === 0) buf[at++] = ZERO;
-      else {
-        this.length = at;
-        this.significant(v, digits);
-        at = this.length;
+      if (v === null || !Number.isFinite(v)) {
+        at = putNull(buf, at);
+        continue;
       }
+      const a = Math.abs(v);
+      if (a < zeroBelow || v === 0) {
+        buf[at++] = ZERO;
+        continue;
+      }
+      if ((a < lo || a >= hi) && a > 1e-290 && a < 1e290) {
+        e = Math.floor(Math.log10(a));
+        if (a < pow10(e)) e--;
+        else if (a >= pow10(e + 1)) e++;
+        lo = pow10(e);
+        hi = pow10(e + 1);
+      }
+      if (a >= lo && a < hi) {
+        const shift = digits - 1 - e;
+        let k = Math.round(shift >= 0 ? a * pow10(shift) : a / pow10(-shift));
+        let ek = e;
+        if (k >= carried) {
+          k /= 10;
+          ek++;
+        }
+        if (ek >= -6 && ek < 21 && digits > ek + 1 && k < 2 ** 31) {
+          at = putScaled(buf, at, v < 0, k, digits - 1 - ek);
+          continue;
+        }
+      }
+      this.length = at;
+      this.lastExponent = e;
+      this.significant(v, digits);
+      at = this.length;
+      e = this.lastExponent;
+      lo = pow10(e);
+      hi = pow10(e + 1);
     }
     this.buf[at++] = 93;
     this.length = at;
+    this.lastExponent = e;
     return this;
   }
 }

@@ -50,6 +50,78 @@ describe('JsonBytes', () => {
     );
   });
 
+  // The array writers take shortcuts for the common cases; they must print what the single-value
+  // writers above (checked against toPrecision and JSON.stringify) print, joined by commas. Runs of
+  // neighbouring values share an exponent, as curves do, and cross powers of ten and carries.
+  it('writes arrays as the single-value writers write each entry', () => {
+    const entry = fc.oneof(
+      { weight: 6, arbitrary: curveValue },
+      { weight: 2, arbitrary: finite },
+      {
+        weight: 2,
+        arbitrary: fc.constantFrom(
+          null,
+          0,
+          -0,
+          NaN,
+          Infinity,
+          9.9999999,
+          0.99999996,
+          1e-7,
+          2 ** 31,
+          -(2 ** 31),
+        ),
+      },
+      { weight: 2, arbitrary: fc.integer({ min: -(2 ** 33), max: 2 ** 33 }) },
+    );
+    const run = fc
+      .tuple(curveValue, fc.array(fc.double({ min: 0.9, max: 1.1, noNaN: true }), { maxLength: 8 }))
+      .map(([v, steps]) => steps.map((f, k) => v * f ** k));
+    const values = fc
+      .array(
+        fc.oneof(
+          entry.map((v) => [v]),
+          run,
+        ),
+        { maxLength: 12 },
+      )
+      .map((xs) => xs.flat());
+    const one = (w: JsonBytes, v: number | null, write: (v: number) => void) =>
+      v === null ? w.ascii('null') : write(v);
+    fc.assert(
+      fc.property(
+        values,
+        fc.integer({ min: 1, max: 12 }),
+        fc.integer({ min: 0, max: 9 }),
+        (vs, digits, decimals) => {
+          const zeroBelow = 1e-3;
+          const joined = (write: (w: JsonBytes, v: number | null) => void) =>
+            text((w) => {
+              w.byte(91);
+              vs.forEach((v, i) => {
+                if (i) w.byte(44);
+                write(w, v);
+              });
+              w.byte(93);
+            });
+          expect(text((w) => w.significantArray(vs, digits))).toBe(
+            joined((w, v) => one(w, v, (x) => w.significant(x, digits))),
+          );
+          expect(text((w) => w.significantArray(vs, digits, zeroBelow))).toBe(
+            joined((w, v) =>
+              one(w, v, (x) => (Math.abs(x) < zeroBelow ? w.byte(48) : w.significant(x, digits))),
+            ),
+          );
+          expect(text((w) => w.fixedArray(vs, decimals))).toBe(
+            joined((w, v) => one(w, v, (x) => w.fixed(x, decimals))),
+          );
+          expect(text((w) => w.exactArray(vs))).toBe(joined((w, v) => one(w, v, (x) => w.exact(x))));
+        },
+      ),
+      { numRuns: 5000 },
+    );
+  });
+
   it('writes every value exactly as JSON.stringify does', () => {
     fc.assert(
       fc.property(fc.oneof(finite, fc.integer(), fc.integer({ min: -(2 ** 52), max: 2 ** 53 })), (v) => {
