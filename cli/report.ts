@@ -1,6 +1,6 @@
 /**
  * Writing the offline HTML report: reads the page bundle and uPlot's files, writes the page's pieces
- * (`reportHtmlPieces`) one by one and atomically (the batch's `writeFileAtomic`: a temporary file in the
+ * (`reportHtmlPieces`) one by one and atomically (the batch's `writeFileAtomicDeferred`: a temporary file in the
  * same folder, then a rename), so an interrupted run never leaves half a report.
  *
  * The page bundle is `dist/viewer/app.js` + `app.css`, made by `npm run build`. When the viewer's
@@ -31,7 +31,7 @@ import {
   type SeriesResult,
 } from '../shared/schema.js';
 import { InputError } from '../src/errors.js';
-import { writeFileAtomic } from './batch/atomicWrite.js';
+import { writeFileAtomicDeferred } from './batch/atomicWrite.js';
 import { packageVersion } from './version.js';
 
 /** The folder holding lumirate's package.json, from sources or from dist/. */
@@ -102,8 +102,8 @@ export function loadReportAssets(): ReportAssets {
 }
 
 /** Writes the self-contained report for `data` to `outPath`. */
-export function writeReport(data: ReportData, outPath: string): void {
-  writeReportStreamed(
+export function writeReport(data: ReportData, outPath: string): Promise<void> {
+  return writeReportStreamed(
     data,
     (i) => {
       const curves = data.samples[i].fit?.curves;
@@ -121,8 +121,8 @@ export function writeReportStreamed(
   data: ReportData,
   curvesJson: (i: number) => string | Uint8Array | null,
   outPath: string,
-): void {
-  writeFileAtomic(outPath, reportHtmlPieces(loadReportAssets(), data, curvesJson));
+): Promise<void> {
+  return writeFileAtomicDeferred(outPath, reportHtmlPieces(loadReportAssets(), data, curvesJson));
 }
 
 // ---------------------------------------------------------------------------------------------------

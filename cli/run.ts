@@ -27,7 +27,9 @@ export function reportError(err: unknown): number {
 }
 
 /** Wraps a commander action so that errors become exit codes instead of stack traces. */
-export function action<A extends unknown[]>(fn: (...args: A) => Promise<void> | void): (...args: A) => Promise<void> {
+export function action<A extends unknown[]>(
+  fn: (...args: A) => Promise<void> | void,
+): (...args: A) => Promise<void> {
   return async (...args: A) => {
     try {
       await fn(...args);

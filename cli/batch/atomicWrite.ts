@@ -1,5 +1,8 @@
-import { closeSync, fsyncSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
+import { closeSync, fsync, fsyncSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
+import { promisify } from 'node:util';
 import { BackgroundFlush } from './backgroundFlush.js';
+
+const fsyncOffThread = promisify(fsync);
 
 /** The temporary name a file is written under before it is renamed into place. */
 export function temporaryName(path: string): string {
@@ -44,6 +47,24 @@ export class AtomicFile {
     renameSync(this.temporaryPath, this.path);
   }
 
+  /**
+   * As `commit`, with the flush to disk done on the I/O threads, so that this thread can write other
+   * files meanwhile (a batch's report is tens of megabytes). The file is in place when the promise
+   * resolves; on failure the temporary file is removed and the promise rejects.
+   */
+  async commitDeferred(): Promise<void> {
+    this.flush?.close();
+    try {
+      await fsyncOffThread(this.fd);
+      closeSync(this.fd);
+      this.fd = -1;
+      renameSync(this.temporaryPath, this.path);
+    } catch (err) {
+      this.abort();
+      throw err;
+    }
+  }
+
   /** Removes the temporary file (after an error); the target is left as it was. */
   abort(): void {
     this.flush?.close();
@@ -64,11 +85,34 @@ export class AtomicFile {
  * error rethrown.
  */
 export function writeFileAtomic(path: string, chunks: string | Iterable<string | Uint8Array>): void {
+  const file = writeChunks(path, chunks);
+  try {
+    file.commit();
+  } catch (err) {
+    file.abort();
+    throw err;
+  }
+}
+
+/**
+ * As `writeFileAtomic`, with the flush to disk and the rename deferred (see `commitDeferred`): the
+ * text is written before this returns (a failure to write throws here), the file is in place when
+ * the promise resolves.
+ */
+export function writeFileAtomicDeferred(
+  path: string,
+  chunks: string | Iterable<string | Uint8Array>,
+): Promise<void> {
+  return writeChunks(path, chunks).commitDeferred();
+}
+
+/** The chunks written to a new temporary file, not yet committed; removed again if writing fails. */
+function writeChunks(path: string, chunks: string | Iterable<string | Uint8Array>): AtomicFile {
   const file = new AtomicFile(path);
   try {
     if (typeof chunks === 'string') file.write(chunks);
     else for (const chunk of chunks) file.write(chunk);
-    file.commit();
+    return file;
   } catch (err) {
     file.abort();
     throw err;

@@ -11,7 +11,7 @@ import { reportCurvesOf, type OutputEntry } from './writeOutputs.js';
 export function reportWriter(
   dir: string,
   title: string,
-): (entries: OutputEntry[], series: SeriesResult[]) => void {
+): (entries: OutputEntry[], series: SeriesResult[]) => Promise<void> {
   return (entries, series) =>
     writeReportStreamed(
       {

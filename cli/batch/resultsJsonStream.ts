@@ -1,6 +1,6 @@
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
-import { AtomicFile, writeFileAtomic } from './atomicWrite.js';
+import { AtomicFile, writeFileAtomicDeferred } from './atomicWrite.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
@@ -76,7 +76,7 @@ export class ResultsJsonStream {
   }
 
   /** Completes the file and renames it into place. `ordered`: all entries, in manifest order. */
-  finish(ordered: OutputEntry[]): void {
+  finish(ordered: OutputEntry[]): Promise<void> {
     try {
       const arrived = this.entries.filter((e): e is OutputEntry => e !== undefined);
       if (
@@ -85,16 +85,15 @@ export class ResultsJsonStream {
         arrived.some((e, k) => e.brief.sample !== ordered[k].brief.sample)
       ) {
         this.file.abort();
-        writeFileAtomic(this.path, resultsJsonChunks(ordered));
-        return;
+        return writeFileAtomicDeferred(this.path, resultsJsonChunks(ordered));
       }
       for (let i = this.next; i < this.entries.length; i++) if (this.entries[i]) this.writeSlot(i);
       this.file.write('\n]\n');
-      this.file.commit();
     } catch (err) {
       this.file.abort();
       throw err;
     }
+    return this.file.commitDeferred();
   }
 
   /** Removes the temporary copy (the batch failed before its outputs were written). */

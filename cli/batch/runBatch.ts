@@ -333,7 +333,7 @@ async function runWithPool(
   }
   const title = `lumirate batch: ${manifestPath.split(/[\\/]/).pop()}${options.shard ? ` (share ${options.shard.index}/${options.shard.count})` : ''}`;
   try {
-    writeBatchOutputs(outDir, entries, series, {
+    await writeBatchOutputs(outDir, entries, series, {
       title,
       writeReport: wantReport ? reportWriter(outDir, title) : undefined,
       resultsJson,

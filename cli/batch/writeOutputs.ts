@@ -4,7 +4,7 @@ import { curvesForScript } from '../../shared/reportHtml.js';
 import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shared/schema.js';
 import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
-import { writeFileAtomic } from './atomicWrite.js';
+import { writeFileAtomicDeferred } from './atomicWrite.js';
 import { resultsJsonChunks, type ResultsJsonStream } from './resultsJsonStream.js';
 
 /** The files a batch leaves in its output directory. */
@@ -46,34 +46,56 @@ export function removeStaleTemporaries(dir: string): void {
 
 /**
  * Writes results.json (streamed one sample at a time, so a large batch never sits in memory as one
- * string; or completed, when the batch wrote it as it ran), results.csv, summary.md, errors.log and, when there are series, series.json; each one
- * atomically. Samples appear in manifest order.
+ * string; or completed, when the batch wrote it as it ran), results.csv, summary.md, errors.log,
+ * series.json when there are series, and the report; each one atomically. Samples appear in manifest
+ * order. Each file's text is written on this thread; the flushes to disk run on the I/O threads, the
+ * report's (the largest) first, while the tables are formatted. Resolves when every file is in place;
+ * when any fails, rejects with the first error once the others have settled.
  */
-export function writeBatchOutputs(
+export async function writeBatchOutputs(
   dir: string,
   entries: OutputEntry[],
   series: SeriesResult[],
   options: {
     title: string;
-    writeReport?: (entries: OutputEntry[], series: SeriesResult[]) => void;
+    writeReport?: (entries: OutputEntry[], series: SeriesResult[]) => Promise<void>;
     /** results.json as the batch has been writing it while it ran, to complete. */
     resultsJson?: ResultsJsonStream;
   },
-): void {
+): Promise<void> {
   const ordered = entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief));
   const briefs = ordered.map((e) => e.brief);
-  if (options.resultsJson) options.resultsJson.finish(ordered);
-  else writeFileAtomic(join(dir, 'results.json'), resultsJsonChunks(ordered));
-  writeFileAtomic(join(dir, 'results.csv'), formatResultsCsv(briefs));
-  writeFileAtomic(join(dir, 'summary.md'), formatSummaryMarkdown(briefs, series, options.title));
-  writeFileAtomic(join(dir, 'errors.log'), formatErrorsLog(briefs));
+  const writing: Promise<void>[] = [];
+  const start = (write: () => Promise<void>) => {
+    try {
+      writing.push(write());
+    } catch (err) {
+      writing.push(Promise.reject(err));
+    }
+  };
+  const report = options.writeReport;
+  if (report) start(() => report(ordered, series));
+  const stream = options.resultsJson;
+  start(() =>
+    stream
+      ? stream.finish(ordered)
+      : writeFileAtomicDeferred(join(dir, 'results.json'), resultsJsonChunks(ordered)),
+  );
+  start(() => writeFileAtomicDeferred(join(dir, 'results.csv'), formatResultsCsv(briefs)));
+  start(() =>
+    writeFileAtomicDeferred(join(dir, 'summary.md'), formatSummaryMarkdown(briefs, series, options.title)),
+  );
+  start(() => writeFileAtomicDeferred(join(dir, 'errors.log'), formatErrorsLog(briefs)));
   if (series.length)
-    writeFileAtomic(
-      join(dir, 'series.json'),
-      JSON.stringify({ schemaVersion: SCHEMA_VERSION, series }, null, 2) + '\n',
+    start(() =>
+      writeFileAtomicDeferred(
+        join(dir, 'series.json'),
+        JSON.stringify({ schemaVersion: SCHEMA_VERSION, series }, null, 2) + '\n',
+      ),
     );
   else rmSync(join(dir, 'series.json'), { force: true });
-  options.writeReport?.(ordered, series);
+  const failed = (await Promise.allSettled(writing)).find((r) => r.status === 'rejected');
+  if (failed) throw failed.reason;
 }
 
 /**

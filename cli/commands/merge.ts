@@ -25,7 +25,7 @@ export function register(program: Command): void {
     )
     .option('--no-report', 'do not write report.html')
     .action(
-      action((dirs: string[], opts: { out: string; settings?: string; report: boolean }) => {
+      action(async (dirs: string[], opts: { out: string; settings?: string; report: boolean }) => {
         // Each sample's JSON is kept as the bytes it is in its file; only its brief is held parsed.
         const entryOf = new Map<SampleResult, OutputEntry>();
         const parts = dirs.map((dir) => {
@@ -51,7 +51,7 @@ export function register(program: Command): void {
         }
         mkdirSync(opts.out, { recursive: true });
         removeStaleTemporaries(opts.out);
-        writeBatchOutputs(
+        await writeBatchOutputs(
           opts.out,
           merged.map((r) => entryOf.get(r)!),
           series,

@@ -30,7 +30,7 @@ export function register(program: Command): void {
     .option('--title <text>', 'title shown at the top of the report')
     .option('-q, --quiet', 'print nothing on success')
     .action(
-      action((results: string, opts: ViewOptions) => {
+      action(async (results: string, opts: ViewOptions) => {
         const text = readTextFile(results);
         const series = (opts.series ?? []).flatMap((f) =>
           seriesFromJson(parseJsonText(readTextFile(f), f), f),
@@ -45,7 +45,7 @@ export function register(program: Command): void {
           throw new InputError('is a folder; give a file name for the report', { file: out });
         if (!existsSync(dirname(out) || '.'))
           throw new InputError(`the folder "${dirname(out)}" does not exist`, { file: out });
-        writeReport(data, out);
+        await writeReport(data, out);
         if (!opts.quiet) {
           const failed = data.samples.filter((s) => s.status === 'failed').length;
           process.stdout.write(

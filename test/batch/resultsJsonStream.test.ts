@@ -47,14 +47,14 @@ function writtenWhole(dir: string, entries: OutputEntry[]): string {
 describe('ResultsJsonStream', () => {
   const results = [sample('a', 1), sample('b', 2), sample('c', 3), sample('d', 4), sample('e', 5)];
 
-  it('writes samples arriving out of order in manifest order, as the whole-file writer does', () => {
+  it('writes samples arriving out of order in manifest order, as the whole-file writer does', async () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');
     const stream = new ResultsJsonStream(path, results);
     const got = arrivals(dir, [results[1], results[0], results[3], results[4], results[2]]);
     for (const { entry, line } of got) stream.add(entry, line);
     const entries = got.map((g) => g.entry);
-    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    await stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
     const text = readFileSync(path, 'utf8');
     expect(text).toBe(writtenWhole(dir, entries));
     expect((JSON.parse(text) as SampleResult[]).map((r) => r.sample)).toEqual(['a', 'b', 'c', 'd', 'e']);
@@ -71,25 +71,25 @@ describe('ResultsJsonStream', () => {
     expect(readdirSync(dir)).toEqual(['.journal']);
   });
 
-  it('reads early results back from the journal when holding them would pass its memory bound', () => {
+  it('reads early results back from the journal when holding them would pass its memory bound', async () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');
     const stream = new ResultsJsonStream(path, results, 0);
     const got = arrivals(dir, [results[4], results[3], results[2], results[1], results[0]]);
     for (const { entry, line } of got) stream.add(entry, line);
     const entries = got.map((g) => g.entry);
-    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    await stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
     expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, entries));
   });
 
-  it('leaves out the samples of a stopped batch that never arrived', () => {
+  it('leaves out the samples of a stopped batch that never arrived', async () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');
     const stream = new ResultsJsonStream(path, results);
     const got = arrivals(dir, [results[0], results[2], results[4]]);
     for (const { entry, line } of got) stream.add(entry, line);
     const entries = got.map((g) => g.entry);
-    stream.finish(entries);
+    await stream.finish(entries);
     expect((JSON.parse(readFileSync(path, 'utf8')) as SampleResult[]).map((r) => r.sample)).toEqual([
       'a',
       'c',
@@ -98,14 +98,14 @@ describe('ResultsJsonStream', () => {
     expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, entries));
   });
 
-  it('falls back to writing the whole file when a sample arrives that was not announced', () => {
+  it('falls back to writing the whole file when a sample arrives that was not announced', async () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');
     const stream = new ResultsJsonStream(path, results.slice(0, 2));
     const got = arrivals(dir, [results[0], sample('zz', 0), results[1]]);
     for (const { entry, line } of got) stream.add(entry, line);
     const entries = got.map((g) => g.entry);
-    stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    await stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
     expect((JSON.parse(readFileSync(path, 'utf8')) as SampleResult[]).map((r) => r.sample)).toEqual([
       'zz',
       'a',
@@ -114,10 +114,10 @@ describe('ResultsJsonStream', () => {
     expect(readdirSync(dir).sort()).toEqual(['.journal', 'results.json']);
   });
 
-  it('writes an empty batch as an empty array', () => {
+  it('writes an empty batch as an empty array', async () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');
-    new ResultsJsonStream(path, []).finish([]);
+    await new ResultsJsonStream(path, []).finish([]);
     expect(JSON.parse(readFileSync(path, 'utf8'))).toEqual([]);
     expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, []));
   });

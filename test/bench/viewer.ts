@@ -36,10 +36,10 @@ for (let i = 0; i < SAMPLES; i++) {
 const data: ReportData = { ...base, title: `Benchmark: ${SAMPLES} samples × ${CHANNELS} channels`, samples };
 
 let t = performance.now();
-writeReport(data, path); // includes building the page bundle when it is stale
+await writeReport(data, path); // includes building the page bundle when it is stale
 const firstWriteMs = performance.now() - t;
 t = performance.now();
-writeReport(data, path);
+await writeReport(data, path);
 const writeMs = performance.now() - t;
 const sizeMb = statSync(path).size / 1e6;
 

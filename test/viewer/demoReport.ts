@@ -33,7 +33,7 @@ function runCli(args: string[]): { status: number | null; stderr: string; stdout
   return { status: r.status, stderr: r.stderr, stdout: r.stdout };
 }
 
-export function demoReport(): OpenedReport {
+export async function demoReport(): Promise<OpenedReport> {
   mkdirSync(OUTPUT_DIR, { recursive: true });
   const manifest = join(ROOT, 'sample-data', 'manifest.csv');
   if (existsSync(manifest)) {
@@ -71,7 +71,7 @@ export function demoReport(): OpenedReport {
   }
   const data: ReportData = fixtureReport({ samples: 12, channels: 4096 });
   const path = join(OUTPUT_DIR, 'fixture-report.html');
-  writeReport(data, path);
+  await writeReport(data, path);
   return { path, samples: data.samples, source: 'fixture' };
 }
 

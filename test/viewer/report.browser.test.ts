@@ -56,7 +56,7 @@ async function open(path: string): Promise<void> {
 }
 
 beforeAll(async () => {
-  report = demoReport();
+  report = await demoReport();
   chrome = await launchHeadless();
   const context = await chrome.browser.newContext({
     viewport: { width: 1400, height: 1000 },
@@ -251,7 +251,7 @@ describe('hostile names in the report', () => {
     const failed = data.samples.find((s) => s.status === 'failed')!;
     failed.error = '<iframe src="javascript:window.__pwned=6"></iframe>';
     const path = join(OUTPUT_DIR, 'hostile-report.html');
-    writeReport(data, path);
+    await writeReport(data, path);
     problems.length = 0;
     await open(path);
     expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
@@ -283,7 +283,7 @@ describe('series views', () => {
   it('draw each series with its points and fitted law, and list the parameters with their errors', async () => {
     const data = fixtureReport({ samples: 6, channels: 256 });
     const path = join(OUTPUT_DIR, 'series-report.html');
-    writeReport(data, path);
+    await writeReport(data, path);
     problems.length = 0;
     await open(path);
     expect(await page.locator('.lr-series .lr-series-block').count()).toBe(data.series.length);
@@ -330,7 +330,7 @@ describe('a large report', () => {
   it('puts every row in the table, in slices, and keeps the sorted order across them', async () => {
     const data = fixtureReport({ samples: 250, channels: 128, series: false });
     const path = join(OUTPUT_DIR, 'large-report.html');
-    writeReport(data, path);
+    await writeReport(data, path);
     problems.length = 0;
     await open(path);
     const n = data.samples.length;
