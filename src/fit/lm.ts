@@ -199,6 +199,15 @@ function gradientAndHessian(
 }
 
 /**
+ * Sets entries (a, b) and (b, a) of the C × C matrix. A function of the module rather than a closure
+ * in `weightedGram`: a closure made on each call has a new identity every time, and code compiled
+ * while the loop ran (on-stack replacement) would be thrown away at the next call.
+ */
+function putSymmetric(gram: Float64Array, C: number, a: number, b: number, value: number): void {
+  gram[a * C + b] = gram[b * C + a] = value;
+}
+
+/**
  * Weighted Gram matrix and projection of C columns packed row-wise in `cols` (cols[a·N + i]):
  * gram[a·C + b] = Σᵢ wᵢ·cₐᵢ·c_bᵢ and proj[a] = Σᵢ vᵢ·cₐᵢ. Overwrites gram (C×C) and proj (C).
  *
@@ -242,7 +251,6 @@ export function weightedGram(
     gram[ones * C + ones] = sw;
     proj[ones] = sv;
   }
-  const put = (a: number, b: number, value: number) => (gram[a * C + b] = gram[b * C + a] = value);
   for (let x = 0; x < K; x += 2) {
     const a1 = idx[x];
     const o1 = a1 * N;
@@ -270,8 +278,8 @@ export function weightedGram(
       proj[a1] = p1;
       proj[a2] = p2;
       if (ones >= 0) {
-        put(a1, ones, t1);
-        put(a2, ones, t2);
+        putSymmetric(gram, C, a1, ones, t1);
+        putSymmetric(gram, C, a2, ones, t2);
       }
       // Earlier columns and this pair itself, two at a time (x is even, so they pair up exactly).
       for (let y = 0; y <= x; y += 2) {
@@ -293,10 +301,10 @@ export function weightedGram(
           s21 += z * c1;
           s22 += z * c2;
         }
-        put(a1, b1, s11);
-        put(a1, b2, s12);
-        put(a2, b1, s21);
-        put(a2, b2, s22);
+        putSymmetric(gram, C, a1, b1, s11);
+        putSymmetric(gram, C, a1, b2, s12);
+        putSymmetric(gram, C, a2, b1, s21);
+        putSymmetric(gram, C, a2, b2, s22);
       }
     } else {
       // The last column of an odd count: one scratch row, each earlier column and itself.
@@ -310,7 +318,7 @@ export function weightedGram(
         p1 += v[i] * c1;
       }
       proj[a1] = p1;
-      if (ones >= 0) put(a1, ones, t1);
+      if (ones >= 0) putSymmetric(gram, C, a1, ones, t1);
       for (let y = 0; y <= x; y++) {
         const q = idx[y] * N;
         let s0 = 0;
@@ -321,7 +329,7 @@ export function weightedGram(
           s1 += wa[i + 1] * cols[q + i + 1];
         }
         if (i < N) s0 += wa[i] * cols[q + i];
-        put(a1, idx[y], s0 + s1);
+        putSymmetric(gram, C, a1, idx[y], s0 + s1);
       }
     }
   }

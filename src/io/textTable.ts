@@ -334,24 +334,46 @@ function readPlainTable(text: string, source: string): TextTable | null {
     columns = joined;
   }
   if (!scanned || (header && headerProblem(columns, line, source))) return null;
-  const table: TextTable = {
-    source,
-    delimiter,
-    decimalMark: scanned.decimalMark,
-    header,
-    columns,
-    get rows(): TableRow[] {
-      // Made once, by the general reader, only for a caller that needs the cells' text.
-      const rows = readGeneralTable(text, source).rows;
-      Object.defineProperty(table, 'rows', { value: rows });
-      return rows;
-    },
-    rowCount: scanned.rowCount,
-    numbers: scanned.columns,
-    ...sink,
-    headerLine: header ? line : null,
-  };
-  return table;
+  return new ScannedTable(text, source, delimiter, scanned, header, columns, sink, header ? line : null);
+}
+
+/**
+ * A table read by the fast path. Its rows of cell text are made only for a caller that asks (for a
+ * message, say), by the general reader. A class rather than an object literal with a getter: every
+ * such literal gets a shape of its own, so code reading many tables would see a new one each time
+ * and have its compiled form thrown away.
+ */
+class ScannedTable implements TextTable {
+  readonly decimalMark: TextTable['decimalMark'];
+  readonly rowCount: number;
+  readonly numbers: Float64Array[];
+  readonly metadata: Record<string, string>;
+  readonly metadataLines: Record<string, number>;
+  readonly warnings: string[];
+  private cellRows: TableRow[] | null = null;
+
+  constructor(
+    private readonly text: string,
+    readonly source: string,
+    readonly delimiter: TextTable['delimiter'],
+    scanned: { decimalMark: TextTable['decimalMark']; rowCount: number; columns: Float64Array[] },
+    readonly header: string[] | null,
+    readonly columns: string[],
+    sink: MetadataSink,
+    readonly headerLine: number | null,
+  ) {
+    this.decimalMark = scanned.decimalMark;
+    this.rowCount = scanned.rowCount;
+    this.numbers = scanned.columns;
+    this.metadata = sink.metadata;
+    this.metadataLines = sink.metadataLines;
+    this.warnings = sink.warnings;
+  }
+
+  get rows(): TableRow[] {
+    this.cellRows ??= readGeneralTable(this.text, this.source).rows;
+    return this.cellRows;
+  }
 }
 
 /**
