@@ -4,7 +4,7 @@ import { EXIT } from './exitCodes.js';
 import { buildProgram } from './program.js';
 
 async function main(argv: string[]): Promise<void> {
-  const program = buildProgram();
+  const program = await buildProgram(argv);
   try {
     await program.parseAsync(argv);
   } catch (err) {

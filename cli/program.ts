@@ -1,19 +1,33 @@
 import { Command } from 'commander';
 import { packageVersion } from './version.js';
 import { EXIT_CODES_HELP } from './exitCodes.js';
-import { register as registerInspect } from './commands/inspect.js';
-import { register as registerSimulate } from './commands/simulate.js';
-import { register as registerFit } from './commands/fit.js';
-import { register as registerRates } from './commands/rates.js';
-import { register as registerSb } from './commands/sb.js';
-import { register as registerQy } from './commands/qy.js';
-import { register as registerBatch } from './commands/batch.js';
-import { register as registerSeries } from './commands/series.js';
-import { register as registerMerge } from './commands/merge.js';
-import { register as registerView } from './commands/view.js';
 
-/** The whole command tree; `main.ts` runs it, tests drive it directly. */
-export function buildProgram(): Command {
+/** The commands, in the order help lists them; each module under commands/ exports `register`. */
+const COMMANDS = [
+  'inspect',
+  'simulate',
+  'fit',
+  'rates',
+  'sb',
+  'qy',
+  'batch',
+  'series',
+  'merge',
+  'view',
+] as const;
+
+type Register = (program: Command) => void;
+
+function loadCommand(name: (typeof COMMANDS)[number]): Promise<{ register: Register }> {
+  return import(`./commands/${name}.js`) as Promise<{ register: Register }>;
+}
+
+/**
+ * The command tree; `main.ts` runs it, tests drive it directly. With `argv`, when it names a command
+ * only that command's module is loaded (a batch's start-up then skips the rest of the tool); help,
+ * the version and anything unrecognised get the whole tree.
+ */
+export async function buildProgram(argv?: string[]): Promise<Command> {
   const program = new Command();
   program
     .name('lumirate')
@@ -22,19 +36,8 @@ export function buildProgram(): Command {
     .showHelpAfterError()
     .addHelpText('after', `\n${EXIT_CODES_HELP}`)
     .exitOverride();
-  for (const register of [
-    registerInspect,
-    registerSimulate,
-    registerFit,
-    registerRates,
-    registerSb,
-    registerQy,
-    registerBatch,
-    registerSeries,
-    registerMerge,
-    registerView,
-  ]) {
-    register(program);
-  }
+  const named = COMMANDS.find((c) => c === argv?.[2]);
+  const modules = await Promise.all((named ? [named] : COMMANDS).map(loadCommand));
+  for (const m of modules) m.register(program);
   return program;
 }

@@ -1,6 +1,6 @@
 import type { SampleResult } from '../../shared/schema.js';
 import type { InputLocation } from '../../src/errors.js';
-import type { SampleInputs } from '../../src/batch/runSample.js';
+import type { SampleInputs } from '../../src/batch/sampleRecord.js';
 import type { SampleSettings } from '../../src/batch/settings.js';
 
 /** A file a worker reads for a sample: where it is, and which manifest cell or setting named it. */

@@ -5,7 +5,12 @@ import { dirname, join, resolve } from 'node:path';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { sha256Hex, stableStringify } from '../../src/batch/hash.js';
 import { parseManifest, type ManifestRow } from '../../src/batch/manifest.js';
-import { failedSample, sampleFileRefs, settingsRecord, type RunContext } from '../../src/batch/runSample.js';
+import {
+  failedSample,
+  sampleFileRefs,
+  settingsRecord,
+  type RunContext,
+} from '../../src/batch/sampleRecord.js';
 import { runSeries } from '../../src/batch/series.js';
 import {
   EMPTY_SETTINGS,
