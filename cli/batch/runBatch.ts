@@ -11,6 +11,7 @@ import {
   settingsRecord,
   type RunContext,
 } from '../../src/batch/sampleRecord.js';
+import { prepareResultsCsvRow } from '../../src/batch/outputs.js';
 import { runSeries } from '../../src/batch/series.js';
 import {
   EMPTY_SETTINGS,
@@ -289,6 +290,8 @@ async function runWithPool(
       }
       if (reportCurves) used.push(reportCurves.buffer as ArrayBuffer);
       entries.push(entry);
+      // Its row of results.csv now, while the threads fit, rather than all rows once they are done.
+      prepareResultsCsvRow(brief);
       const line = typeof json === 'string' ? undefined : json;
       if (!resultsJson.add(entry, line) && line) used.push(line.buffer as ArrayBuffer);
       done++;

@@ -51,20 +51,66 @@ export function formatResultsCsv(samples: SampleResult[]): string {
     'error',
   );
   const lines = [header.map(csvQuote).join(',')];
+  // A sample with fewer components leaves the rest of the component columns empty.
+  const emptyComponent = ',,,,';
   for (const s of samples) {
-    const f = s.fit;
-    const cells = [s.sample, s.status, s.group ?? '', num(f?.nComponents)];
-    for (let i = 0; i < nc; i++) {
-      const c = f?.components[i];
-      cells.push(
-        num(c?.tauNs),
-        num(c?.tauErrNs),
-        num(c?.intensityFraction),
-        num(c?.intensityFractionErr),
-        num(c?.amplitude),
-      );
-    }
-    cells.push(
+    const row = csvRowOf(s);
+    const cells = [row.lead];
+    for (let i = 0; i < nc; i++) cells.push(row.components[i] ?? emptyComponent);
+    cells.push(row.values);
+    for (const k of meta) cells.push(csvQuote(s.metadata[k] ?? ''));
+    cells.push(row.tail);
+    lines.push(cells.join(','));
+  }
+  return lines.join('\n') + '\n';
+}
+
+/**
+ * A sample's row of results.csv in the pieces that do not depend on the rest of the batch, quoted and
+ * joined: lead (sample … n_components), one piece per component, the values from the average
+ * lifetimes to the Strickler–Berg ratio, and the warnings and error; the metadata cells are added by
+ * column. Kept per result, so that a batch can format each row as its sample arrives
+ * (`prepareResultsCsvRow`) rather than all of them once the last one is in.
+ */
+interface CsvRowParts {
+  lead: string;
+  components: string[];
+  values: string;
+  tail: string;
+}
+
+const csvRows = new WeakMap<SampleResult, CsvRowParts>();
+
+function csvRowOf(s: SampleResult): CsvRowParts {
+  let row = csvRows.get(s);
+  if (!row) {
+    row = csvRowParts(s);
+    csvRows.set(s, row);
+  }
+  return row;
+}
+
+/** Formats a result's row of results.csv ahead of `formatResultsCsv` (same text either way). */
+export function prepareResultsCsvRow(s: SampleResult): void {
+  csvRowOf(s);
+}
+
+function csvRowParts(s: SampleResult): CsvRowParts {
+  const f = s.fit;
+  const joined = (cells: string[]) => cells.map(csvQuote).join(',');
+  const components = (f?.components ?? []).map((c) =>
+    joined([
+      num(c.tauNs),
+      num(c.tauErrNs),
+      num(c.intensityFraction),
+      num(c.intensityFractionErr),
+      num(c.amplitude),
+    ]),
+  );
+  return {
+    lead: joined([s.sample, s.status, s.group ?? '', num(f?.nComponents)]),
+    components,
+    values: joined([
       num(f?.tauAmpAvgNs),
       num(f?.tauAmpAvgErrNs),
       num(f?.tauIntAvgNs),
@@ -84,13 +130,9 @@ export function formatResultsCsv(samples: SampleResult[]): string {
       num(s.sb?.krSbPerS),
       num(s.sb?.krRatio),
       num(s.sb?.krRatioErr),
-      ...meta.map((k) => s.metadata[k] ?? ''),
-      allWarnings(s).join('; '),
-      s.error ?? '',
-    );
-    lines.push(cells.map(csvQuote).join(','));
-  }
-  return lines.join('\n') + '\n';
+    ]),
+    tail: joined([allWarnings(s).join('; '), s.error ?? '']),
+  };
 }
 
 /** The sample's own warnings and those of its fit, rates and Strickler–Berg parts, without repeats. */
