@@ -122,15 +122,46 @@ function inlineStyle(css: string, what: string): string {
   return css;
 }
 
-/** The summary the page parses at load: every sample without its curves. */
-function summaryOf(data: ReportData): ReportData {
-  const samples = data.samples.map((s): SampleResult => {
-    if (!s.fit) return s;
-    // The curves travel in their own block; the page puts them back when it shows the sample.
-    const { curves: _curves, ...fit } = s.fit;
-    return { ...s, fit: fit as SampleResult['fit'] };
-  });
-  return { ...data, samples };
+/** A sample as the page's summary holds it: without its curves. */
+function withoutCurves(s: SampleResult): SampleResult {
+  if (!s.fit) return s;
+  // The curves travel in their own block; the page puts them back when it shows the sample.
+  const { curves: _curves, ...fit } = s.fit;
+  return { ...s, fit: fit as SampleResult['fit'] };
+}
+
+/** Each sample's script-safe summary JSON, kept with the result (see `prepareReportSample`). */
+const summaryTexts = new WeakMap<SampleResult, string>();
+
+function summaryTextOf(s: SampleResult): string {
+  let text = summaryTexts.get(s);
+  if (text === undefined) {
+    text = jsonForScript(withoutCurves(s));
+    summaryTexts.set(s, text);
+  }
+  return text;
+}
+
+/**
+ * Makes a sample's part of the report summary ahead of the report (the same text either way): a
+ * batch does it as each result arrives, rather than for all samples once the last one is in.
+ */
+export function prepareReportSample(s: SampleResult): void {
+  summaryTextOf(s);
+}
+
+/**
+ * The summary the page parses at load, as script-safe JSON: the report data with every sample
+ * without its curves; the same text as `jsonForScript` of that object.
+ */
+function summaryJson(data: ReportData): string {
+  const parts: string[] = [];
+  for (const [key, value] of Object.entries(data)) {
+    if (value === undefined) continue;
+    const text = key === 'samples' ? `[${data.samples.map(summaryTextOf).join(',')}]` : jsonForScript(value);
+    parts.push(`${jsonForScript(key)}:${text}`);
+  }
+  return `{${parts.join(',')}}`;
 }
 
 /**
@@ -181,7 +212,7 @@ export function* reportHtmlPieces(
     '<noscript><p>This report draws its tables and plots with JavaScript; please allow scripts for this local file.</p></noscript>\n' +
     '<div id="lumirate-app"></div>\n'
   );
-  yield `<script type="application/json" id="${REPORT_DATA_ID}">${jsonForScript(summaryOf(data))}</script>\n`;
+  yield `<script type="application/json" id="${REPORT_DATA_ID}">${summaryJson(data)}</script>\n`;
   function* curveBlock(i: number): Generator<string | Uint8Array> {
     const json = curvesJson(i);
     if (json === null) return;

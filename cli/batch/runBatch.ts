@@ -2,6 +2,7 @@ import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
+import { prepareReportSample } from '../../shared/reportHtml.js';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { sha256Hex, stableStringify } from '../../src/batch/hash.js';
 import { parseManifest, type ManifestRow } from '../../src/batch/manifest.js';
@@ -290,8 +291,10 @@ async function runWithPool(
       }
       if (reportCurves) used.push(reportCurves.buffer as ArrayBuffer);
       entries.push(entry);
-      // Its row of results.csv now, while the threads fit, rather than all rows once they are done.
+      // Its row of results.csv and its part of the report's summary now, while the threads fit,
+      // rather than all of them once they are done.
       prepareResultsCsvRow(brief);
+      if (wantReport) prepareReportSample(brief);
       const line = typeof json === 'string' ? undefined : json;
       if (!resultsJson.add(entry, line) && line) used.push(line.buffer as ArrayBuffer);
       done++;

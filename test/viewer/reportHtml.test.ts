@@ -5,6 +5,7 @@ import {
   escapeHtml,
   jsonForScript,
   packCurves,
+  prepareReportSample,
   REPORT_CSP,
   REPORT_DATA_ID,
   unpackCurves,
@@ -77,6 +78,31 @@ describe('assembleReportHtml', () => {
     // Script elements: the data blocks, uPlot and the page, and no more (the hostile names added none).
     const curveBlocks = data.samples.filter((s) => s.fit).length;
     expect(html.match(/<script\b/gi)?.length).toBe(1 + curveBlocks + 2);
+  });
+
+  // Reference: JSON.stringify of the report data with each sample's curves left out, made script-safe
+  // by jsonForScript (tested above); the page's summary is assembled from per-sample pieces and must
+  // be that very text, whether or not the pieces were made ahead (prepareReportSample).
+  it('writes the summary as jsonForScript of the data without curves, pieces made ahead or not', () => {
+    const withoutCurves = {
+      ...data,
+      samples: data.samples.map((s) => {
+        if (!s.fit) return s;
+        const { curves: _c, ...fit } = s.fit;
+        return { ...s, fit };
+      }),
+    };
+    const expected = jsonForScript(withoutCurves);
+    const summaryText = (page: string) => jsonBlocks(page).find((b) => b.id === REPORT_DATA_ID)!.text;
+    expect(summaryText(html)).toBe(expected);
+    const ahead = fixtureReport({ samples: 3, channels: 64, extraNames: HOSTILE });
+    ahead.title = data.title;
+    ahead.samples.forEach(prepareReportSample);
+    const aheadExpected = jsonForScript({
+      ...ahead,
+      samples: ahead.samples.map((s) => (s.fit ? { ...s, fit: { ...s.fit, curves: undefined } } : s)),
+    });
+    expect(summaryText(assembleReportHtml(assets, ahead))).toBe(aheadExpected);
   });
 
   it('escapes the title in the head', () => {
