@@ -49,6 +49,7 @@ import { parseHistogramText } from '../../src/io/parseHistogram.js';
 import { formatHistogramTable } from '../../src/io/writeTable.js';
 import { createRng } from '../../src/sim/rng.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
+import { machineSpeedLine } from './machineSpeed.js';
 
 const N = Number(process.env.BENCH_BATCH_N ?? 1000);
 const cores = availableParallelism();
@@ -258,7 +259,8 @@ try {
     { label: 'tables only (--no-curves --no-report)', extra: ['--no-curves', '--no-report'] },
   ];
   for (const v of variants) {
-    console.log(`\n${v.label}`);
+    // The host may be slower now than a minute ago: the same loop the fit benchmark times, per block.
+    console.log(`\n${v.label}\n  ${machineSpeedLine()}`);
     const results: Record<number, Run> = {};
     for (const jobs of [1, 2]) {
       const r = await runOnce(jobs, v.extra);

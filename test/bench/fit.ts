@@ -13,6 +13,7 @@ import { exponentialBasis, prepareIrf, shiftIrf } from '../../src/model/reconvol
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
 import { createRng } from '../../src/sim/rng.js';
 import type { Histogram } from '../../src/io/types.js';
+import { machineSpeedLine } from './machineSpeed.js';
 
 const DECAYS = 50;
 const TAUS = [0.8, 3.5];
@@ -65,37 +66,10 @@ function timeFits(curves: boolean) {
   return { wall, cpu, iterations, relErr, peakHeap };
 }
 
-/**
- * Machine speed at the time of the run, so figures from a busy and an idle machine can be compared: a
- * fixed loop of 10⁶ multiply-adds over typed arrays (the shape of the fitter's inner loops), best of 20.
- */
-function calibrate(): number {
-  const n = 4096;
-  const a = Float64Array.from({ length: 6 * n }, (_, i) => (i % 7) / 7);
-  const w = new Float64Array(n).fill(1.01);
-  const h = new Float64Array(36);
-  let best = Infinity;
-  for (let rep = 0; rep < 20; rep++) {
-    const t0 = performance.now();
-    // 12 × 4096 × 21 ≈ 1.03·10⁶ multiply-adds
-    for (let k = 0; k < 12; k++) {
-      for (let i = 0; i < n; i++) {
-        const wi = w[i];
-        for (let p = 0; p < 6; p++) {
-          const wp = wi * a[p * n + i];
-          for (let q = 0; q <= p; q++) h[p * 6 + q] += wp * a[q * n + i];
-        }
-      }
-    }
-    best = Math.min(best, performance.now() - t0);
-  }
-  return best;
-}
-
 console.log(
   `2-exponential reconvolution fits, 4096 channels, Poisson maximum likelihood, ${DECAYS} decays, one thread`,
 );
-console.log(`machine speed now: 10⁶ multiply-adds in ${calibrate().toFixed(2)} ms (best of 20)`);
+console.log(machineSpeedLine());
 for (const curves of [false, true]) {
   // Best of five rounds of medians: other processes on a shared machine only ever add time.
   const rounds = Array.from({ length: 5 }, () => timeFits(curves));
