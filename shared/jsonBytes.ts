@@ -86,6 +86,11 @@ function putScaled(buf: Uint8Array, at: number, negative: boolean, m: number, de
   return end;
 }
 
+/** Is x (≥ 0) within a few units of its own rounding of a half-way point between whole numbers? */
+function nearHalf(x: number): boolean {
+  return Math.abs(x - Math.floor(x) - 0.5) <= x * 1e-15;
+}
+
 function putNull(buf: Uint8Array, at: number): number {
   buf[at] = NULL_BYTES[0];
   buf[at + 1] = NULL_BYTES[1];
@@ -200,7 +205,11 @@ export class JsonBytes {
       this.lastExponent = e;
     }
     const shift = digits - 1 - e;
-    let k = Math.round(shift >= 0 ? a * pow10(shift) : a / pow10(-shift));
+    const scaled = shift >= 0 ? a * pow10(shift) : a / pow10(-shift);
+    // The scaling rounds: a value within a few units of that rounding of a half-way point may have
+    // crossed it, and only the exact decimal expansion decides (rare: about 1 in 10^(16 − digits)).
+    if (nearHalf(scaled)) return this.ascii(String(Number(v.toPrecision(digits))));
+    let k = Math.round(scaled);
     if (k >= POW10[digits]) {
       // Rounding carried into a new digit (9.9999999 → 10.00000).
       k /= 10;
@@ -354,9 +363,10 @@ export class JsonBytes {
         lo = pow10(e);
         hi = pow10(e + 1);
       }
-      if (a >= lo && a < hi) {
-        const shift = digits - 1 - e;
-        let k = Math.round(shift >= 0 ? a * pow10(shift) : a / pow10(-shift));
+      const shift = digits - 1 - e;
+      const scaled = shift >= 0 ? a * pow10(shift) : a / pow10(-shift);
+      if (a >= lo && a < hi && !nearHalf(scaled)) {
+        let k = Math.round(scaled);
         let ek = e;
         if (k >= carried) {
           k /= 10;
