@@ -1,6 +1,8 @@
+import { closeSync, openSync, readdirSync, readFileSync, readSync } from 'node:fs';
+import { join } from 'node:path';
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
-import { AtomicFile, writeFileAtomicDeferred } from './atomicWrite.js';
+import { AtomicFile, temporaryName, writeFileAtomicDeferred } from './atomicWrite.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
@@ -10,10 +12,13 @@ const DEFAULT_MAX_HELD_BYTES = 32 * 1024 * 1024;
  * results.json, written while the batch runs instead of copied out of the journal at the end: each
  * sample goes into the file's temporary copy as soon as every sample before it in manifest order has
  * arrived. Workers finish a little out of order, so a result that comes early waits, with its bytes
- * in memory up to `maxHeldBytes` in all, beyond that in the journal. `finish` adds the samples still
- * waiting (a stopped batch leaves gaps) and puts the file in place; the text is the same as
- * `resultsJsonChunks` makes from all entries at the end (and when the samples that arrived do not
- * match those announced, that is how it is written).
+ * in memory up to `maxHeldBytes` in all; one past that bound is left to the caller (who keeps it in
+ * the journal). `finish` adds the samples still waiting (a stopped batch leaves gaps) and puts the
+ * file in place; the text is the same as `resultsJsonChunks` makes from all entries at the end (and
+ * when the samples that arrived do not match those announced, that is how it is written).
+ *
+ * The temporary copy also serves a killed batch: its complete lines are results (see
+ * `readUnfinishedResults`). An entry whose line the stream wrote or holds reads its text from there.
  */
 export class ResultsJsonStream {
   private readonly file: AtomicFile;
@@ -25,6 +30,11 @@ export class ResultsJsonStream {
   private written = 0;
   /** The samples did not arrive as announced: the file is written whole at the end. */
   private unordered = false;
+  /** Bytes in the temporary copy so far. */
+  private offset = 0;
+  /** For reading written lines back (an entry's `json`/`bytes`). */
+  private readFd: number;
+  private scratch = Buffer.allocUnsafe(0);
 
   /** `expected`: every sample the batch will output, in any order. */
   constructor(
@@ -40,39 +50,75 @@ export class ResultsJsonStream {
     this.entries = new Array(order.length);
     this.held = new Array(order.length);
     this.file = new AtomicFile(path).flushWhileWriting(1000);
-    this.file.write('[\n');
+    this.readFd = openSync(this.file.temporaryPath, 'r');
+    this.put('[\n');
+  }
+
+  private put(chunk: string | Uint8Array): void {
+    this.file.write(chunk);
+    this.offset += typeof chunk === 'string' ? Buffer.byteLength(chunk) : chunk.length;
   }
 
   /**
-   * A finished sample, with its JSON line (ending in a newline) when it is at hand. Returns true when
-   * the line is kept for later (the caller must then leave its bytes alone), false when it was
-   * written or not needed.
+   * Bytes of the file, in a buffer the next call reuses. Once the file is in place the descriptor is
+   * closed and a (rare) later read opens the finished file, which holds the same bytes there.
    */
-  add(entry: OutputEntry, line?: Uint8Array): boolean {
-    if (this.unordered) return false;
+  private readBack(offset: number, length: number): Uint8Array {
+    if (this.scratch.length < length) this.scratch = Buffer.allocUnsafe(Math.max(length, 1 << 20));
+    const fd = this.readFd !== -1 ? this.readFd : openSync(this.path, 'r');
+    try {
+      readSync(fd, this.scratch, 0, length, offset);
+    } finally {
+      if (fd !== this.readFd) closeSync(fd);
+    }
+    return this.scratch.subarray(0, length);
+  }
+
+  /** Points an entry's `json`/`bytes` at a stretch of the temporary copy. */
+  private readFromFile(e: OutputEntry, offset: number, length: number): void {
+    e.bytes = () => this.readBack(offset, length);
+    e.json = () => Buffer.from(this.readBack(offset, length)).toString('utf8');
+  }
+
+  /**
+   * A finished sample, with its JSON line (ending in a newline) when it is at hand. Says what became
+   * of the line: 'written' into the file (its bytes are free again), 'held' in memory until the samples
+   * before it arrive (the caller must leave its bytes alone), or 'left' to the caller, who keeps it
+   * where the entry's `json`/`bytes` can read it (past the memory bound, or when the samples do not
+   * arrive as announced). The stream points the entry's `json`/`bytes` at the copy it writes or holds.
+   */
+  add(entry: OutputEntry, line?: Uint8Array): 'written' | 'held' | 'left' {
+    if (this.unordered) return 'left';
     const at = this.slotOf.get(entry.brief.sample);
     if (at === undefined || this.entries[at] || at < this.next) {
       this.unordered = true;
-      return false;
+      return 'left';
     }
     this.entries[at] = entry;
-    if (line && (at === this.next || this.heldBytes + line.length <= this.maxHeldBytes)) {
+    const kept =
+      line !== undefined && (at === this.next || this.heldBytes + line.length <= this.maxHeldBytes);
+    if (kept) {
       this.held[at] = line;
       this.heldBytes += line.length;
+      const text = line.subarray(0, line.length - 1);
+      entry.bytes = () => text;
+      entry.json = () => Buffer.from(text).toString('utf8');
     }
     while (this.next < this.entries.length && this.entries[this.next]) this.writeSlot(this.next++);
-    return this.held[at] !== undefined;
+    return !kept ? 'left' : this.held[at] ? 'held' : 'written';
   }
 
   private writeSlot(i: number): void {
     const e = this.entries[i]!;
-    if (this.written++) this.file.write(',\n');
+    if (this.written++) this.put(',\n');
     const line = this.held[i];
+    const start = this.offset;
     if (line) {
-      this.file.write(line.subarray(0, line.length - 1));
+      this.put(line.subarray(0, line.length - 1));
       this.held[i] = undefined;
       this.heldBytes -= line.length;
-    } else this.file.write(e.bytes ? e.bytes() : e.json());
+    } else this.put(e.bytes ? e.bytes() : e.json());
+    this.readFromFile(e, start, this.offset - start);
   }
 
   /** Completes the file and renames it into place. `ordered`: all entries, in manifest order. */
@@ -84,21 +130,30 @@ export class ResultsJsonStream {
         arrived.length !== ordered.length ||
         arrived.some((e, k) => e.brief.sample !== ordered[k].brief.sample)
       ) {
+        // The entries read from the old copy while the new one is written and after: gone from the
+        // folder, it stays readable through the descriptor, which is left open for them.
         this.file.abort();
         return writeFileAtomicDeferred(this.path, resultsJsonChunks(ordered));
       }
       for (let i = this.next; i < this.entries.length; i++) if (this.entries[i]) this.writeSlot(i);
-      this.file.write('\n]\n');
+      this.put('\n]\n');
     } catch (err) {
-      this.file.abort();
+      this.abort();
       throw err;
     }
-    return this.file.commitDeferred();
+    return this.file.commitDeferred().finally(() => this.closeRead());
   }
 
   /** Removes the temporary copy (the batch failed before its outputs were written). */
   abort(): void {
     this.file.abort();
+    this.closeRead();
+  }
+
+  private closeRead(): void {
+    if (this.readFd === -1) return;
+    closeSync(this.readFd);
+    this.readFd = -1;
   }
 }
 
@@ -111,4 +166,44 @@ export function* resultsJsonChunks(entries: OutputEntry[]): Generator<string | U
     yield e.bytes ? e.bytes() : e.json();
   }
   yield '\n]\n';
+}
+
+/**
+ * The results in the temporary copies of results.json that killed batches left in `dir` (not this
+ * process's own): every complete line that parses, as `readJournal` reads the journal. Read by
+ * `--resume` before the copies are cleared.
+ */
+export function* readUnfinishedResults(dir: string): Generator<{ bytes: Buffer; value: unknown }> {
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return;
+  }
+  const mine = temporaryName('results.json');
+  for (const name of names) {
+    if (!/^results\.json\.tmp-\d+$/.test(name) || name === mine) continue;
+    let content: Buffer;
+    try {
+      content = readFileSync(join(dir, name));
+    } catch {
+      continue;
+    }
+    let start = 0;
+    for (;;) {
+      const end = content.indexOf(10, start);
+      // A line without its newline may have been cut short by the kill: its sample reruns.
+      if (end < 0) break;
+      let stop = end;
+      if (content[stop - 1] === 44) stop--; // the comma before the next sample
+      const bytes = content.subarray(start, stop);
+      start = end + 1;
+      if (bytes[0] !== 123) continue; // the opening bracket, or the closing one
+      try {
+        yield { bytes, value: JSON.parse(bytes.toString('utf8')) };
+      } catch {
+        // torn
+      }
+    }
+  }
 }

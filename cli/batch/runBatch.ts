@@ -30,7 +30,7 @@ import { Journal, readJournal } from './journal.js';
 import { siblingModule, WorkerPool } from './pool.js';
 import { ProgressBar } from './progress.js';
 import { readResultsEntries } from './readResults.js';
-import { ResultsJsonStream } from './resultsJsonStream.js';
+import { readUnfinishedResults, ResultsJsonStream } from './resultsJsonStream.js';
 import { reportWriter } from './report.js';
 import {
   briefOf,
@@ -117,10 +117,14 @@ function reusable(prev: SampleResult, p: Prepared, version: string): boolean {
 }
 
 /**
- * Previous results in outDir: results.json of a finished run, then the journal of an interrupted one
- * (later wins). Kept as JSON text or bytes plus the result without its curves, to hold memory down.
+ * Previous results in outDir: results.json of a finished run, then what a killed one left (its
+ * results.json's temporary copy, read before such copies are cleared, and its journal; later wins).
+ * Kept as JSON text or bytes plus the result without its curves, to hold memory down.
  */
-function previousResults(outDir: string): Map<string, OutputEntry> {
+function previousResults(
+  outDir: string,
+  unfinished: { bytes: Buffer; value: unknown }[],
+): Map<string, OutputEntry> {
   const out = new Map<string, OutputEntry>();
   const resultsPath = join(outDir, 'results.json');
   if (existsSync(resultsPath)) {
@@ -130,7 +134,7 @@ function previousResults(outDir: string): Map<string, OutputEntry> {
       // An unreadable results.json just means nothing to reuse from it.
     }
   }
-  for (const { bytes, value } of readJournal(join(outDir, JOURNAL_NAME))) {
+  for (const { bytes, value } of [...unfinished, ...readJournal(join(outDir, JOURNAL_NAME))]) {
     const r = value as SampleResult;
     if (r && typeof r.sample === 'string')
       out.set(r.sample, { brief: briefOf(r), json: () => bytes.toString('utf8'), bytes: () => bytes });
@@ -176,6 +180,7 @@ async function runWithPool(
 
   const outDir = options.outDir;
   mkdirSync(outDir, { recursive: true });
+  const unfinished = options.resume ? [...readUnfinishedResults(outDir)] : [];
   removeStaleTemporaries(outDir);
 
   // Resolve every row; a row that cannot be resolved fails on its own with the cell that is wrong.
@@ -212,7 +217,7 @@ async function runWithPool(
   let reused = 0;
   let toRun = prepared;
   if (options.resume) {
-    const prev = previousResults(outDir);
+    const prev = previousResults(outDir, unfinished);
     const keep = new Set<string>();
     const groups = new Map<string, Prepared[]>();
     for (const p of prepared) {
@@ -279,12 +284,9 @@ async function runWithPool(
     /** Records a finished sample; returns the buffers of its bytes that are no longer needed. */
     const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
       const used: ArrayBuffer[] = [];
-      const at = typeof json === 'string' ? journal.append(json) : journal.appendLine(json);
-      const entry: OutputEntry = {
-        brief,
-        json: () => journal.read(at),
-        bytes: () => journal.readBytesTransient(at),
-      };
+      const line = typeof json === 'string' ? Buffer.from(json + '\n', 'utf8') : json;
+      // Where its text can be read back is set below: results.json's temporary copy, or the journal.
+      const entry: OutputEntry = { brief, json: () => '' };
       if (reportCurves && curvesSpool) {
         const c = curvesSpool.appendLine(reportCurves);
         entry.reportCurves = () => curvesSpool.readBytesTransient(c);
@@ -295,8 +297,16 @@ async function runWithPool(
       // rather than all of them once they are done.
       prepareResultsCsvRow(brief);
       if (wantReport) prepareReportSample(brief);
-      const line = typeof json === 'string' ? undefined : json;
-      if (!resultsJson.add(entry, line) && line) used.push(line.buffer as ArrayBuffer);
+      // Results that go into results.json's temporary copy at once (most) or wait in memory for the
+      // ones before them need no journal: a killed batch's copy is read back by --resume. Only those
+      // the stream cannot keep are journalled.
+      const placed = resultsJson.add(entry, line);
+      if (placed === 'left') {
+        const at = journal.appendLine(line);
+        entry.json = () => journal.read(at);
+        entry.bytes = () => journal.readBytesTransient(at);
+      }
+      if (placed !== 'held' && typeof json !== 'string') used.push(json.buffer as ArrayBuffer);
       done++;
       if (brief.status === 'failed') failedNow++;
       return used;

@@ -1,10 +1,22 @@
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import {
+  appendFileSync,
+  copyFileSync,
+  existsSync,
+  mkdtempSync,
+  readdirSync,
+  readFileSync,
+  rmSync,
+} from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
-import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
+import { temporaryName, writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal } from '../../cli/batch/journal.js';
-import { ResultsJsonStream, resultsJsonChunks } from '../../cli/batch/resultsJsonStream.js';
+import {
+  readUnfinishedResults,
+  ResultsJsonStream,
+  resultsJsonChunks,
+} from '../../cli/batch/resultsJsonStream.js';
 import type { OutputEntry } from '../../cli/batch/writeOutputs.js';
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
@@ -112,6 +124,42 @@ describe('ResultsJsonStream', () => {
       'b',
     ]);
     expect(readdirSync(dir).sort()).toEqual(['.journal', 'results.json']);
+  });
+
+  it('says what became of each line, and points the entry at the copy it wrote or holds', async () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results, 0);
+    const got = arrivals(dir, [results[1], results[0], results[2]]);
+    // Sample b comes first and cannot be held (no room): the caller keeps it. Then a is written at
+    // once, b after it from the caller's copy, and c at once.
+    expect(got.map(({ entry, line }) => stream.add(entry, line))).toEqual(['left', 'written', 'written']);
+    for (const { entry } of got) expect(JSON.parse(entry.json())).toEqual(entry.brief);
+    const roomy = new ResultsJsonStream(join(dir, 'other.json'), results);
+    const more = arrivals(dir, [results[1], results[0]]);
+    expect(more.map(({ entry, line }) => roomy.add(entry, line))).toEqual(['held', 'written']);
+    expect(JSON.parse(more[0].entry.json())).toEqual(results[1]);
+    roomy.abort();
+    stream.abort();
+  });
+
+  // A batch killed while it ran leaves results.json's temporary copy: --resume reads every complete
+  // sample back from it, not a torn last line, and never the copy of a batch still running (its own).
+  it('gives back the complete results of a killed batch’s temporary copy', () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    const stream = new ResultsJsonStream(path, results);
+    for (const { entry, line } of arrivals(dir, [results[0], results[1], results[3]]))
+      stream.add(entry, line);
+    const own = join(dir, temporaryName('results.json'));
+    expect(existsSync(own)).toBe(true);
+    expect([...readUnfinishedResults(dir)]).toEqual([]);
+    const killed = join(dir, 'results.json.tmp-1');
+    copyFileSync(own, killed);
+    appendFileSync(killed, ',\n{"sample":"c","manife');
+    const back = [...readUnfinishedResults(dir)].map((r) => r.value);
+    expect(back).toEqual([results[0], results[1]]);
+    stream.abort();
   });
 
   it('writes an empty batch as an empty array', async () => {

@@ -105,7 +105,10 @@ beforeAll(() => {
   );
 });
 
-/** Starts a one-worker batch into `out` and sends `signal` once three samples are in its journal. */
+/**
+ * Starts a one-worker batch into `out` and sends `signal` once three samples are in results.json's
+ * temporary copy (where a running batch puts each result as it arrives).
+ */
 async function startAndSignal(out: string, signal: NodeJS.Signals) {
   const args = ['--import', 'tsx', join(root, 'cli', 'main.ts'), 'batch', at('manifest.csv'), '--out', out];
   const child = spawn(
@@ -121,11 +124,17 @@ async function startAndSignal(out: string, signal: NodeJS.Signals) {
   const exited = new Promise<{ code: number | null; stderr: string }>((resolve) =>
     child.on('exit', (code) => resolve({ code, stderr })),
   );
-  const journal = join(out, '.journal.ndjson');
+  const finished = () => {
+    const copy = existsSync(out)
+      ? readdirSync(out).find((n) => /^results\.json\.tmp-\d+$/.test(n))
+      : undefined;
+    // The opening bracket's line, then one line per sample.
+    return copy ? readFileSync(join(out, copy), 'utf8').split('\n').length - 2 : 0;
+  };
   await new Promise<void>((resolve, reject) => {
     const started = Date.now();
     const poll = setInterval(() => {
-      const lines = existsSync(journal) ? readFileSync(journal, 'utf8').split('\n').length - 1 : 0;
+      const lines = finished();
       if (lines >= 3) {
         clearInterval(poll);
         child.kill(signal);
