@@ -113,20 +113,28 @@ export class Journal {
  */
 export function* readJournal(path: string): Generator<{ bytes: Buffer; value: unknown }> {
   if (!existsSync(path)) return;
-  const content = readFileSync(path);
+  yield* completeJsonLines(readFileSync(path));
+}
+
+/**
+ * The JSON objects of a file written one per line, as a killed writer left it: a line only counts when
+ * it ends in a newline and parses (a line torn by a crash, even one followed by later appends, is
+ * skipped: its sample reruns). A comma ending a line (the separator in results.json's temporary copy)
+ * is left out, and lines that are not objects (its brackets) are passed over.
+ */
+export function* completeJsonLines(content: Buffer): Generator<{ bytes: Buffer; value: unknown }> {
   let start = 0;
   for (;;) {
     const end = content.indexOf(10, start);
     if (end < 0) break; // a line without its newline was being written when the process died
-    const bytes = content.subarray(start, end);
+    const stop = end > start && content[end - 1] === 44 ? end - 1 : end;
+    const bytes = content.subarray(start, stop);
     start = end + 1;
-    const text = bytes.toString('utf8');
-    if (text.trim() === '') continue;
+    if (bytes[0] !== 123) continue;
     let value: unknown;
     try {
-      value = JSON.parse(text);
+      value = JSON.parse(bytes.toString('utf8'));
     } catch {
-      // A line torn by a crash and then followed by a later append: skip it, its sample reruns.
       continue;
     }
     yield { bytes, value };

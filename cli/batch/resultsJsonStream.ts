@@ -3,6 +3,7 @@ import { join } from 'node:path';
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
 import { AtomicFile, temporaryName, writeFileAtomicDeferred } from './atomicWrite.js';
+import { completeJsonLines } from './journal.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
@@ -189,21 +190,6 @@ export function* readUnfinishedResults(dir: string): Generator<{ bytes: Buffer; 
     } catch {
       continue;
     }
-    let start = 0;
-    for (;;) {
-      const end = content.indexOf(10, start);
-      // A line without its newline may have been cut short by the kill: its sample reruns.
-      if (end < 0) break;
-      let stop = end;
-      if (content[stop - 1] === 44) stop--; // the comma before the next sample
-      const bytes = content.subarray(start, stop);
-      start = end + 1;
-      if (bytes[0] !== 123) continue; // the opening bracket, or the closing one
-      try {
-        yield { bytes, value: JSON.parse(bytes.toString('utf8')) };
-      } catch {
-        // torn
-      }
-    }
+    yield* completeJsonLines(content);
   }
 }
