@@ -277,12 +277,24 @@ export class JsonBytes {
    * writers, which fit in the room reserved for it.
    */
 
+  /** Room for an array of `count` numbers, and its opening bracket; returns where the first goes. */
+  private openArray(count: number): number {
+    this.room(2 + count * NUMBER_ROOM);
+    this.buf[this.length] = 91;
+    return this.length + 1;
+  }
+
+  /** The closing bracket of an array whose last number ends at `at`. */
+  private closeArray(at: number): this {
+    this.buf[at] = 93;
+    this.length = at + 1;
+    return this;
+  }
+
   /** A JSON array of the values at full precision; null and non-finite entries as `null`. */
   exactArray(values: ArrayLike<number | null>): this {
     const count = values.length;
-    this.room(2 + count * NUMBER_ROOM);
-    let at = this.length;
-    this.buf[at++] = 91;
+    let at = this.openArray(count);
     for (let i = 0; i < count; i++) {
       const buf = this.buf;
       if (i) buf[at++] = 44;
@@ -296,17 +308,13 @@ export class JsonBytes {
         at = this.length;
       }
     }
-    this.buf[at++] = 93;
-    this.length = at;
-    return this;
+    return this.closeArray(at);
   }
 
   /** A JSON array of the first `count` values, each rounded to `decimals` places. */
   fixedArray(values: ArrayLike<number | null>, decimals: number, count = values.length): this {
-    this.room(2 + count * NUMBER_ROOM);
     const scale = pow10(decimals);
-    let at = this.length;
-    this.buf[at++] = 91;
+    let at = this.openArray(count);
     for (let i = 0; i < count; i++) {
       const buf = this.buf;
       if (i) buf[at++] = 44;
@@ -323,9 +331,7 @@ export class JsonBytes {
         at = this.length;
       }
     }
-    this.buf[at++] = 93;
-    this.length = at;
-    return this;
+    return this.closeArray(at);
   }
 
   /**
@@ -334,9 +340,7 @@ export class JsonBytes {
    */
   significantArray(values: ArrayLike<number | null>, digits: number, zeroBelow = 0): this {
     const count = values.length;
-    this.room(2 + count * NUMBER_ROOM);
-    let at = this.length;
-    this.buf[at++] = 91;
+    let at = this.openArray(count);
     const carried = POW10[digits];
     // The single-value writer's steps, kept in this loop for the common layouts (plain decimals,
     // below 2^31 once scaled); the rest goes through `significant` itself.
@@ -385,9 +389,7 @@ export class JsonBytes {
       lo = pow10(e);
       hi = pow10(e + 1);
     }
-    this.buf[at++] = 93;
-    this.length = at;
     this.lastExponent = e;
-    return this;
+    return this.closeArray(at);
   }
 }
