@@ -47,11 +47,16 @@ export function formatNumber(value: number, options: FormatOptions = {}): string
 }
 
 /** "4.021 ± 0.034"; falls back to the value alone when the uncertainty is missing or not positive. */
-export function formatValueError(value: number, err: number | null | undefined, options: FormatOptions = {}): string {
+export function formatValueError(
+  value: number,
+  err: number | null | undefined,
+  options: FormatOptions = {},
+): string {
   const pm = options.plusMinus ?? ' ± ';
   const plainBelow = options.plainBelow ?? 1e5;
   if (!Number.isFinite(value)) return String(value);
-  if (err === null || err === undefined || !Number.isFinite(err) || err <= 0) return formatNumber(value, options);
+  if (err === null || err === undefined || !Number.isFinite(err) || err <= 0)
+    return formatNumber(value, options);
   const errExp = leadingExponent(err);
   const lastPlace = errExp - uncertaintyDigits(err) + 1; // decimal exponent of the last kept digit
   const big = Math.max(Math.abs(value), err);
@@ -63,6 +68,7 @@ export function formatValueError(value: number, err: number | null | undefined, 
     return `(${v}${pm}${e})e${exp}`;
   }
   const decimals = Math.max(0, -lastPlace);
-  const round = (x: number) => (lastPlace > 0 ? (Math.round(x / 10 ** lastPlace) * 10 ** lastPlace).toFixed(0) : x.toFixed(decimals));
+  const round = (x: number) =>
+    lastPlace > 0 ? (Math.round(x / 10 ** lastPlace) * 10 ** lastPlace).toFixed(0) : x.toFixed(decimals);
   return `${round(value)}${pm}${round(err)}`;
 }
