@@ -33,11 +33,6 @@ export interface PoolTask {
   id: number;
 }
 
-/** Buffers handed back to a worker after its reply was used (see `WorkerPool.run`). */
-export interface RecycleMessage {
-  recycle: ArrayBuffer[];
-}
-
 /**
  * A fixed set of worker threads fed from a queue. Each worker holds up to `inFlight` tasks so that it
  * never waits for the main thread between two of them. Replies arrive in completion order.
@@ -60,15 +55,10 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
   ) {}
 
   /**
-   * Runs every task; `onReply` sees each reply as it arrives, and may return buffers to hand back to
-   * the worker that sent it (transferred, as `{ recycle: buffers }`), so that the worker can write its
-   * next replies into them instead of allocating. Resolves when all are done or `stop()` was called.
+   * Runs every task; `onReply` sees each reply as it arrives. Resolves when all are done or `stop()`
+   * was called.
    */
-  run(
-    tasks: T[],
-    onReply: (reply: R) => ArrayBuffer[] | void,
-    onLost?: (task: T, why: string) => void,
-  ): Promise<void> {
+  run(tasks: T[], onReply: (reply: R) => void, onLost?: (task: T, why: string) => void): Promise<void> {
     const queue = tasks.slice().reverse();
     let outstanding = tasks.length;
     return new Promise<void>((resolve, reject) => {
@@ -117,15 +107,12 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
           if (at >= 0) pending.splice(at, 1);
           outstanding--;
           if (this.stopped) return;
-          let back: ArrayBuffer[] | void;
           try {
-            back = onReply(reply);
+            onReply(reply);
           } catch (err) {
             return finish(err as Error);
           }
           if (outstanding === 0) return finish();
-          // Before the next task, so that the worker has them when it writes its reply.
-          if (back && back.length && !dead) w.postMessage({ recycle: back } satisfies RecycleMessage, back);
           feed();
         });
         w.on('error', (err) => lost(`the worker running it failed: ${err.message}`));

@@ -27,8 +27,8 @@ export interface WorkTask {
 /**
  * What comes back for each member: the full result as a line of JSON in UTF-8 (ending in a newline,
  * ready for the journal), a copy without curves and, when a report is wanted, the sample's curves
- * block for it (`curvesForScript`, also as a UTF-8 line). The bytes are transferred, not copied, and
- * the main thread neither encodes nor parses them.
+ * block for it (`curvesForScript`, also as a UTF-8 line). The main thread neither encodes nor parses
+ * them; they arrive as copies (why not transferred: `lineToSend` in the worker).
  */
 export interface MemberReply {
   json: Uint8Array;

@@ -281,9 +281,8 @@ async function runWithPool(
     pool.stop();
   });
   try {
-    /** Records a finished sample; returns the buffers of its bytes that are no longer needed. */
+    /** Records a finished sample. */
     const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
-      const used: ArrayBuffer[] = [];
       const line = typeof json === 'string' ? Buffer.from(json + '\n', 'utf8') : json;
       // Where its text can be read back is set below: results.json's temporary copy, or the journal.
       const entry: OutputEntry = { brief, json: () => '' };
@@ -291,7 +290,6 @@ async function runWithPool(
         const c = curvesSpool.appendLine(reportCurves);
         entry.reportCurves = () => curvesSpool.readBytesTransient(c);
       }
-      if (reportCurves) used.push(reportCurves.buffer as ArrayBuffer);
       entries.push(entry);
       // Its row of results.csv and its part of the report's summary now, while the threads fit,
       // rather than all of them once they are done.
@@ -306,18 +304,14 @@ async function runWithPool(
         entry.json = () => journal.read(at);
         entry.bytes = () => journal.readBytesTransient(at);
       }
-      if (placed !== 'held' && typeof json !== 'string') used.push(json.buffer as ArrayBuffer);
       done++;
       if (brief.status === 'failed') failedNow++;
-      return used;
     };
     await pool.run(
       tasks,
       (reply) => {
-        // The worker writes its next replies into the buffers of this one.
-        const back = reply.results.flatMap((r) => record(r.json, r.brief, r.reportCurves));
+        for (const r of reply.results) record(r.json, r.brief, r.reportCurves);
         progress.update(done, failedNow);
-        return back;
       },
       // A sample that takes its worker down (out of memory …) fails alone; the batch goes on.
       (task, why) => {
