@@ -34,6 +34,14 @@ export interface PoolTask {
 }
 
 /**
+ * Shared buffers handed back to a worker once its reply has been used (see `WorkerPool.run`). Shared,
+ * not transferred: the worker and this thread both see them, and neither ever detaches one.
+ */
+export interface RecycleMessage {
+  recycle: SharedArrayBuffer[];
+}
+
+/**
  * A fixed set of worker threads fed from a queue. Each worker holds up to `inFlight` tasks so that it
  * never waits for the main thread between two of them. Replies arrive in completion order.
  *
@@ -55,10 +63,15 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
   ) {}
 
   /**
-   * Runs every task; `onReply` sees each reply as it arrives. Resolves when all are done or `stop()`
-   * was called.
+   * Runs every task; `onReply` sees each reply as it arrives, and may return shared buffers of the
+   * reply that it no longer needs, to hand back to the worker that sent it (as `{ recycle: buffers }`)
+   * for writing its next replies into. Resolves when all are done or `stop()` was called.
    */
-  run(tasks: T[], onReply: (reply: R) => void, onLost?: (task: T, why: string) => void): Promise<void> {
+  run(
+    tasks: T[],
+    onReply: (reply: R) => SharedArrayBuffer[] | void,
+    onLost?: (task: T, why: string) => void,
+  ): Promise<void> {
     const queue = tasks.slice().reverse();
     let outstanding = tasks.length;
     return new Promise<void>((resolve, reject) => {
@@ -107,12 +120,15 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
           if (at >= 0) pending.splice(at, 1);
           outstanding--;
           if (this.stopped) return;
+          let back: SharedArrayBuffer[] | void;
           try {
-            onReply(reply);
+            back = onReply(reply);
           } catch (err) {
             return finish(err as Error);
           }
           if (outstanding === 0) return finish();
+          // Before the next task, so that the worker has them when it writes its reply.
+          if (back && back.length && !dead) w.postMessage({ recycle: back } satisfies RecycleMessage);
           feed();
         });
         w.on('error', (err) => lost(`the worker running it failed: ${err.message}`));

@@ -281,8 +281,9 @@ async function runWithPool(
     pool.stop();
   });
   try {
-    /** Records a finished sample. */
+    /** Records a finished sample; returns the worker's shared buffers it no longer needs. */
     const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
+      const used: SharedArrayBuffer[] = [];
       const line = typeof json === 'string' ? Buffer.from(json + '\n', 'utf8') : json;
       // Where its text can be read back is set below: results.json's temporary copy, or the journal.
       const entry: OutputEntry = { brief, json: () => '' };
@@ -290,6 +291,7 @@ async function runWithPool(
         const c = curvesSpool.appendLine(reportCurves);
         entry.reportCurves = () => curvesSpool.readBytesTransient(c);
       }
+      if (reportCurves) sharedBufferOf(reportCurves, used);
       entries.push(entry);
       // Its row of results.csv and its part of the report's summary now, while the threads fit,
       // rather than all of them once they are done.
@@ -304,14 +306,19 @@ async function runWithPool(
         entry.json = () => journal.read(at);
         entry.bytes = () => journal.readBytesTransient(at);
       }
+      // Bytes held for results.json are kept until written; their buffer is not handed back.
+      if (placed !== 'held' && typeof json !== 'string') sharedBufferOf(json, used);
       done++;
       if (brief.status === 'failed') failedNow++;
+      return used;
     };
     await pool.run(
       tasks,
       (reply) => {
-        for (const r of reply.results) record(r.json, r.brief, r.reportCurves);
+        // Everything is written by now (synchronously): the worker writes its next replies in them.
+        const back = reply.results.flatMap((r) => record(r.json, r.brief, r.reportCurves));
         progress.update(done, failedNow);
+        return back;
       },
       // A sample that takes its worker down (out of memory …) fails alone; the batch goes on.
       (task, why) => {
@@ -381,6 +388,11 @@ async function runWithPool(
     failures,
     seriesErrors,
   };
+}
+
+/** Adds the shared buffer under `bytes` (a worker's reply) to `into`. */
+function sharedBufferOf(bytes: Uint8Array, into: SharedArrayBuffer[]): void {
+  if (bytes.buffer instanceof SharedArrayBuffer) into.push(bytes.buffer);
 }
 
 export function seriesOptions(req: SeriesRequest): Parameters<typeof runSeries>[1] {

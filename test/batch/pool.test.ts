@@ -61,6 +61,24 @@ describe('WorkerPool', () => {
     // Would leave the test process waiting for the threads if they were not ended.
     await idle.close();
   });
+
+  it('hands the buffers a reply returns back to the worker that sent it', async () => {
+    const pool = new WorkerPool<
+      { id: number; n: number },
+      { id: number; buffer: SharedArrayBuffer; recycledBytes: number }
+    >(squareWorker, 1, undefined, 1);
+    const recycled: number[] = [];
+    await pool.run(
+      Array.from({ length: 5 }, (_, i) => ({ id: i, n: i })),
+      (r) => {
+        recycled.push(r.recycledBytes);
+        return [r.buffer];
+      },
+    );
+    await pool.close();
+    // One task in flight: each reply is sent after the buffer of the one before came back.
+    expect(recycled).toEqual([0, 8, 16, 24, 32]);
+  });
 });
 
 describe('WorkerPool with onLost', () => {
