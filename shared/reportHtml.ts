@@ -144,24 +144,34 @@ function summaryTextOf(s: SampleResult): string {
 
 /**
  * Makes a sample's part of the report summary ahead of the report (the same text either way): a
- * batch does it as each result arrives, rather than for all samples once the last one is in.
+ * batch does it as each result arrives, rather than for all samples once the last one is in. Returns
+ * that text.
  */
-export function prepareReportSample(s: SampleResult): void {
-  summaryTextOf(s);
+export function prepareReportSample(s: SampleResult): string {
+  return summaryTextOf(s);
 }
 
 /**
- * The summary the page parses at load, as script-safe JSON: the report data with every sample
- * without its curves; the same text as `jsonForScript` of that object.
+ * The summary the page parses at load, as script-safe JSON in pieces (each sample's text on its
+ * own, so that a page of thousands of samples is never one string of megabytes): the report data
+ * with every sample without its curves; together, the same text as `jsonForScript` of that object.
  */
-function summaryJson(data: ReportData): string {
-  const parts: string[] = [];
+function* summaryJsonPieces(data: ReportData): Generator<string> {
+  let first = true;
   for (const [key, value] of Object.entries(data)) {
     if (value === undefined) continue;
-    const text = key === 'samples' ? `[${data.samples.map(summaryTextOf).join(',')}]` : jsonForScript(value);
-    parts.push(`${jsonForScript(key)}:${text}`);
+    yield `${first ? '{' : ','}${jsonForScript(key)}:`;
+    first = false;
+    if (key !== 'samples') {
+      yield jsonForScript(value);
+      continue;
+    }
+    yield '[';
+    for (let k = 0; k < data.samples.length; k++)
+      yield k ? `,${summaryTextOf(data.samples[k])}` : summaryTextOf(data.samples[k]);
+    yield ']';
   }
-  return `{${parts.join(',')}}`;
+  yield first ? '{}' : '}';
 }
 
 /**
@@ -189,16 +199,26 @@ export function curvesForScript(curves: FitCurves): string {
   return new TextDecoder().decode(writePackedCurves(new JsonBytes(), curves).take());
 }
 
+/** The opening tag of sample i's curves block (see `reportHtmlPieces`). */
+export function curveBlockOpening(i: number): string {
+  return `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">`;
+}
+
+export const CURVE_BLOCK_CLOSING = '</script>\n';
+
+/** The page's last bytes, after the curves blocks. */
+export const REPORT_END = '</body>\n</html>\n';
+
 /**
- * The report page in pieces, in order, for writing to a file one piece at a time. `data.samples` are
- * read for the summary only (their curves, if any, are ignored); `curvesJson(i)` gives sample i's curves
- * block text as `curvesForScript` makes it (as text or UTF-8 bytes), or null when it has none, and is
- * called once per sample, in order, so a caller can read them from disk as they are needed.
+ * The page up to its curves blocks, in pieces: head, styles, the summary, sample 0's curves block
+ * (`block0`, when it has one: the page opens on the first sample, and its curves are there before
+ * the page script runs) and the scripts. The other blocks may follow in any order (the page looks
+ * them up by id), then `REPORT_END`. `data.samples` are read for the summary only.
  */
-export function* reportHtmlPieces(
+export function* reportHeadPieces(
   assets: ReportAssets,
   data: ReportData,
-  curvesJson: (i: number) => string | Uint8Array | null,
+  block0: string | Uint8Array | null,
 ): Generator<string | Uint8Array> {
   yield (
     '<!doctype html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n' +
@@ -212,20 +232,38 @@ export function* reportHtmlPieces(
     '<noscript><p>This report draws its tables and plots with JavaScript; please allow scripts for this local file.</p></noscript>\n' +
     '<div id="lumirate-app"></div>\n'
   );
-  yield `<script type="application/json" id="${REPORT_DATA_ID}">${summaryJson(data)}</script>\n`;
-  function* curveBlock(i: number): Generator<string | Uint8Array> {
-    const json = curvesJson(i);
-    if (json === null) return;
-    yield `<script type="application/json" id="${CURVES_ID_PREFIX}${i}">`;
-    yield json;
-    yield '</script>\n';
-  }
-  // The page opens on the first sample: its curves are there before the page script runs.
-  if (data.samples.length) yield* curveBlock(0);
+  yield `<script type="application/json" id="${REPORT_DATA_ID}">`;
+  yield* summaryJsonPieces(data);
+  yield '</script>\n';
+  if (data.samples.length && block0 !== null) yield* curveBlockPieces(0, block0);
   yield `<script>${inlineScript(assets.uplotJs)}</script>\n`;
   yield `<script>${inlineScript(assets.appJs)}</script>\n`;
-  for (let i = 1; i < data.samples.length; i++) yield* curveBlock(i);
-  yield '</body>\n</html>\n';
+}
+
+/** Sample i's curves block, its JSON text as `curvesForScript` makes it (as text or UTF-8 bytes). */
+export function* curveBlockPieces(i: number, json: string | Uint8Array): Generator<string | Uint8Array> {
+  yield curveBlockOpening(i);
+  yield json;
+  yield CURVE_BLOCK_CLOSING;
+}
+
+/**
+ * The report page in pieces, in order, for writing to a file one piece at a time. `data.samples` are
+ * read for the summary only (their curves, if any, are ignored); `curvesJson(i)` gives sample i's curves
+ * block text as `curvesForScript` makes it (as text or UTF-8 bytes), or null when it has none, and is
+ * called once per sample, in order, so a caller can read them from disk as they are needed.
+ */
+export function* reportHtmlPieces(
+  assets: ReportAssets,
+  data: ReportData,
+  curvesJson: (i: number) => string | Uint8Array | null,
+): Generator<string | Uint8Array> {
+  yield* reportHeadPieces(assets, data, data.samples.length ? curvesJson(0) : null);
+  for (let i = 1; i < data.samples.length; i++) {
+    const json = curvesJson(i);
+    if (json !== null) yield* curveBlockPieces(i, json);
+  }
+  yield REPORT_END;
 }
 
 /** The whole report page as one string (for small reports and tests; a batch streams the pieces). */

@@ -18,14 +18,25 @@ export class AtomicFile {
   private fd: number;
   readonly temporaryPath: string;
 
-  constructor(readonly path: string) {
-    this.temporaryPath = temporaryName(path);
+  /** `temporaryPath`: default `temporaryName(path)`. */
+  constructor(
+    readonly path: string,
+    temporaryPath?: string,
+  ) {
+    this.temporaryPath = temporaryPath ?? temporaryName(path);
     this.fd = openSync(this.temporaryPath, 'w');
   }
 
   write(chunk: string | Uint8Array): void {
     writeSync(this.fd, typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
     this.flush?.due();
+  }
+
+  /** Writes `bytes` at `position` in the file (which grows as needed); returns the number written. */
+  writeAt(bytes: Uint8Array, position: number): number {
+    const n = writeSync(this.fd, bytes, 0, bytes.length, position);
+    this.flush?.due();
+    return n;
   }
 
   private flush: BackgroundFlush | null = null;

@@ -5,11 +5,11 @@ import {
   fsyncSync,
   openSync,
   readFileSync,
-  readSync,
   rmSync,
   writeSync,
 } from 'node:fs';
 import { BackgroundFlush } from './backgroundFlush.js';
+import { ReadBack } from './readBack.js';
 
 /**
  * The batch journal: one JSON line per finished sample, appended as results arrive, so that a killed
@@ -66,27 +66,15 @@ export class Journal {
 
   /** Reads back an appended line as UTF-8 bytes, for copying into another file without decoding. */
   readBytes(at: { offset: number; length: number }): Buffer {
-    const buf = Buffer.allocUnsafe(at.length);
-    readSync(this.fdForRead(), buf, 0, at.length, at.offset);
-    return buf;
+    return Buffer.from(this.readBytesTransient(at));
   }
 
-  private scratch = Buffer.allocUnsafe(0);
+  private back: ReadBack | null = null;
 
-  /**
-   * As `readBytes`, into a buffer that the next call reuses: for copying lines one after another into
-   * another file, which a fresh buffer per line of 100 kB would slow several times.
-   */
+  /** As `readBytes`, into a buffer that the next call reuses (see `ReadBack`). */
   readBytesTransient(at: { offset: number; length: number }): Uint8Array {
-    if (this.scratch.length < at.length) this.scratch = Buffer.allocUnsafe(Math.max(at.length, 1 << 20));
-    readSync(this.fdForRead(), this.scratch, 0, at.length, at.offset);
-    return this.scratch.subarray(0, at.length);
-  }
-
-  private readFd = -1;
-  private fdForRead(): number {
-    if (this.readFd === -1) this.readFd = openSync(this.path, 'r');
-    return this.readFd;
+    this.back ??= new ReadBack(this.path);
+    return this.back.read(at.offset, at.length);
   }
 
   close(): void {
@@ -96,8 +84,8 @@ export class Journal {
       closeSync(this.fd);
       this.fd = -1;
     }
-    if (this.readFd !== -1) closeSync(this.readFd);
-    this.readFd = -1;
+    this.back?.close();
+    this.back = null;
   }
 
   remove(): void {

@@ -1,9 +1,10 @@
-import { closeSync, openSync, readdirSync, readFileSync, readSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
 import { AtomicFile, temporaryName, writeFileAtomicDeferred } from './atomicWrite.js';
 import { completeJsonLines } from './journal.js';
+import { ReadBack } from './readBack.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
@@ -34,8 +35,7 @@ export class ResultsJsonStream {
   /** Bytes in the temporary copy so far. */
   private offset = 0;
   /** For reading written lines back (an entry's `json`/`bytes`). */
-  private readFd: number;
-  private scratch = Buffer.allocUnsafe(0);
+  private readonly back: ReadBack;
 
   /** `expected`: every sample the batch will output, in any order. */
   constructor(
@@ -50,8 +50,8 @@ export class ResultsJsonStream {
     });
     this.entries = new Array(order.length);
     this.held = new Array(order.length);
-    this.file = new AtomicFile(path).flushWhileWriting(1000);
-    this.readFd = openSync(this.file.temporaryPath, 'r');
+    this.file = new AtomicFile(path).flushWhileWriting(250);
+    this.back = new ReadBack(this.file.temporaryPath, path);
     this.put('[\n');
   }
 
@@ -60,25 +60,10 @@ export class ResultsJsonStream {
     this.offset += typeof chunk === 'string' ? Buffer.byteLength(chunk) : chunk.length;
   }
 
-  /**
-   * Bytes of the file, in a buffer the next call reuses. Once the file is in place the descriptor is
-   * closed and a (rare) later read opens the finished file, which holds the same bytes there.
-   */
-  private readBack(offset: number, length: number): Uint8Array {
-    if (this.scratch.length < length) this.scratch = Buffer.allocUnsafe(Math.max(length, 1 << 20));
-    const fd = this.readFd !== -1 ? this.readFd : openSync(this.path, 'r');
-    try {
-      readSync(fd, this.scratch, 0, length, offset);
-    } finally {
-      if (fd !== this.readFd) closeSync(fd);
-    }
-    return this.scratch.subarray(0, length);
-  }
-
   /** Points an entry's `json`/`bytes` at a stretch of the temporary copy. */
   private readFromFile(e: OutputEntry, offset: number, length: number): void {
-    e.bytes = () => this.readBack(offset, length);
-    e.json = () => Buffer.from(this.readBack(offset, length)).toString('utf8');
+    e.bytes = () => this.back.read(offset, length);
+    e.json = () => Buffer.from(this.back.read(offset, length)).toString('utf8');
   }
 
   /**
@@ -142,19 +127,13 @@ export class ResultsJsonStream {
       this.abort();
       throw err;
     }
-    return this.file.commitDeferred().finally(() => this.closeRead());
+    return this.file.commitDeferred().finally(() => this.back.close());
   }
 
   /** Removes the temporary copy (the batch failed before its outputs were written). */
   abort(): void {
     this.file.abort();
-    this.closeRead();
-  }
-
-  private closeRead(): void {
-    if (this.readFd === -1) return;
-    closeSync(this.readFd);
-    this.readFd = -1;
+    this.back.close();
   }
 }
 

@@ -31,7 +31,9 @@ import { siblingModule, WorkerPool } from './pool.js';
 import { ProgressBar } from './progress.js';
 import { readResultsEntries } from './readResults.js';
 import { readUnfinishedResults, ResultsJsonStream } from './resultsJsonStream.js';
-import { reportWriter } from './report.js';
+import { batchReportData } from './report.js';
+import { ReportStream } from './reportStream.js';
+import { loadReportAssets } from '../report.js';
 import {
   briefOf,
   type FileToRead,
@@ -266,11 +268,16 @@ async function runWithPool(
     ...toRun.map((p) => ({ sample: p.settings.sample, manifestRow: p.settings.manifestRow })),
   ]);
   for (const e of entries) resultsJson.add(e);
-  // The report's curves blocks wait on disk, not in memory, until report.html is written; the file is
-  // scratch (named like a temporary, so a killed run's copy is cleared by the next run).
+  // report.html is written as the samples arrive too, all but its head (see ReportStream).
   const wantReport = options.report !== false;
-  const curvesSpool = wantReport
-    ? new Journal(join(outDir, `.report-curves.tmp-${process.pid}`), { append: false, syncEveryMs: Infinity })
+  const title = `lumirate batch: ${manifestPath.split(/[\\/]/).pop()}${options.shard ? ` (share ${options.shard.index}/${options.shard.count})` : ''}`;
+  const reportStream = wantReport
+    ? new ReportStream(
+        join(outDir, 'report.html'),
+        [...entries.map((e) => e.brief), ...toRun.map((p) => p.settings)],
+        loadReportAssets(),
+        options.shard ? 0 : settings.series.length,
+      )
     : null;
   const progress = ProgressBar.for(nToRun, options.quiet === true);
   let done = 0;
@@ -287,16 +294,13 @@ async function runWithPool(
       const line = typeof json === 'string' ? Buffer.from(json + '\n', 'utf8') : json;
       // Where its text can be read back is set below: results.json's temporary copy, or the journal.
       const entry: OutputEntry = { brief, json: () => '' };
-      if (reportCurves && curvesSpool) {
-        const c = curvesSpool.appendLine(reportCurves);
-        entry.reportCurves = () => curvesSpool.readBytesTransient(c);
-      }
-      if (reportCurves) sharedBufferOf(reportCurves, used);
       entries.push(entry);
-      // Its row of results.csv and its part of the report's summary now, while the threads fit,
-      // rather than all of them once they are done.
+      // Its row of results.csv and its part of the report now, while the threads fit, rather than
+      // all of them once they are done.
       prepareResultsCsvRow(brief);
-      if (wantReport) prepareReportSample(brief);
+      // The worker's curves block is a line: the page takes it without its newline.
+      reportStream?.add(brief.sample, prepareReportSample(brief), reportCurves?.subarray(0, -1));
+      if (reportCurves) sharedBufferOf(reportCurves, used);
       // Results that go into results.json's temporary copy at once (most) or wait in memory for the
       // ones before them need no journal: a killed batch's copy is read back by --resume. Only those
       // the stream cannot keep are journalled.
@@ -331,6 +335,7 @@ async function runWithPool(
     );
   } catch (err) {
     resultsJson.abort();
+    reportStream?.abort();
     throw err;
   } finally {
     progress.finish();
@@ -353,27 +358,23 @@ async function runWithPool(
       }
     }
   }
-  const title = `lumirate batch: ${manifestPath.split(/[\\/]/).pop()}${options.shard ? ` (share ${options.shard.index}/${options.shard.count})` : ''}`;
   try {
     await writeBatchOutputs(outDir, entries, series, {
       title,
-      writeReport: wantReport ? reportWriter(outDir, title) : undefined,
+      writeReport: reportStream
+        ? (ordered, s) => reportStream.finish(ordered, batchReportData(ordered, s, title))
+        : undefined,
       resultsJson,
     });
   } catch (err) {
     resultsJson.abort();
+    reportStream?.abort();
     throw err;
-  } finally {
-    curvesSpool?.close();
   }
   // The journal is only needed to finish an interrupted batch; a complete one lives in results.json.
-  // Deleting a file of a hundred megabytes takes a while: both go at once, alongside the threads' end.
+  // It goes alongside the threads' end.
   journal.close();
-  await Promise.all([
-    closing,
-    curvesSpool && rm(curvesSpool.path, { force: true }),
-    !interrupted && rm(journal.path, { force: true }),
-  ]);
+  await Promise.all([closing, !interrupted && rm(journal.path, { force: true })]);
 
   const failures = briefs
     .filter((b) => b.status === 'failed')

@@ -6,9 +6,9 @@
  *
  * Stages: on this thread, the CPU time of each step a worker takes for a sample (read, parse, fit,
  * writing its results.json line and its report curves block; `JSON.stringify(fit)` for comparison).
- * Then the whole CLI: the batch's thread only appends the workers' bytes to the journal, results.json
- * (written in manifest order as samples arrive) and the report's curves spool, and at the end writes
- * the tables and report.html.
+ * Then the whole CLI: the batch's thread only appends the workers' bytes to results.json (written
+ * in manifest order as samples arrive) and report.html (curves blocks as they arrive), and at the end
+ * writes the report's head and the tables.
  *
  * Data: the simulator's expected histogram for τ = 1.0 and 4.0 ns (intensity fractions 0.4/0.6),
  * Gaussian IRF (FWHM 0.15 ns), 0.0122 ns channels, ~10⁴ counts in the peak, background 5 per
