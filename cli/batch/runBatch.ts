@@ -1,6 +1,7 @@
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
+import { setFlagsFromString } from 'node:v8';
 import { dirname, join, resolve } from 'node:path';
 import { prepareReportSample } from '../../shared/reportHtml.js';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
@@ -159,6 +160,13 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
     report: options.report !== false && options.curves !== false,
   };
   const jobs = Math.max(1, options.jobs ?? availableParallelism());
+  // No on-stack replacement, in this thread and the workers started after this: the engine then
+  // optimises a function between two calls rather than in the middle of a loop. The fitter's and the
+  // writers' first calls run long loops, and code compiled in the middle of one, before the code
+  // after the loop had ever run, was entered again and again and thrown out each time at that code
+  // (hundreds of times in some runs of 1000 decays, each time finishing a loop of 4096 channels
+  // unoptimised). Flags are per process; this one only changes when code is optimised.
+  setFlagsFromString('--no-use-osr');
   const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
   pool.prestart(manifest.rows.length);
   try {
