@@ -97,7 +97,12 @@ export function unpackCurves(p: PackedCurves): FitCurves {
 
 /** JSON that is safe inside a `<script>` element: no `<` at all, and no raw line or paragraph separator. */
 export function jsonForScript(value: unknown): string {
-  return JSON.stringify(value)
+  return scriptSafeJson(JSON.stringify(value));
+}
+
+/** JSON text made safe inside a `<script>` element, as `jsonForScript` does (it reads back the same). */
+export function scriptSafeJson(json: string): string {
+  return json
     .replace(/</g, '\\u003c')
     .replace(/\u2028/g, '\\u2028')
     .replace(/\u2029/g, '\\u2029');
@@ -149,6 +154,17 @@ function summaryTextOf(s: SampleResult): string {
  */
 export function prepareReportSample(s: SampleResult): string {
   return summaryTextOf(s);
+}
+
+/**
+ * A sample result without curves, read from `scriptSafeJson` of its `JSON.stringify` text, with that
+ * text kept as its part of the report summary: the text `prepareReportSample` would make of the
+ * object, which need not be made again.
+ */
+export function reportSampleFromJson(text: string): SampleResult {
+  const s = JSON.parse(text) as SampleResult;
+  summaryTexts.set(s, text);
+  return s;
 }
 
 /**

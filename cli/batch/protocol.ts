@@ -26,13 +26,15 @@ export interface WorkTask {
 
 /**
  * What comes back for each member: the full result as a line of JSON in UTF-8 (ending in a newline,
- * ready for the journal), a copy without curves and, when a report is wanted, the sample's curves
- * block for it (`curvesForScript`, also as a UTF-8 line). The main thread neither encodes nor parses
- * them; they arrive as copies (why not transferred: `lineToSend` in the worker).
+ * ready for results.json), the result without curves as script-safe JSON text (`briefJson` made
+ * `scriptSafeJson`: the batch's thread reads the result from it, and it is that sample's part of the
+ * report's summary as it stands) and, when a report is wanted, the sample's curves block for it
+ * (`curvesForScript`, also as a UTF-8 line). The byte lines are in shared buffers (see `lineToSend`
+ * in the worker); the main thread copies them to files and hands the buffers back.
  */
 export interface MemberReply {
   json: Uint8Array;
-  brief: SampleResult;
+  briefJson: string;
   reportCurves?: Uint8Array;
 }
 

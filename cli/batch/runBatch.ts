@@ -3,7 +3,7 @@ import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { setFlagsFromString } from 'node:v8';
 import { dirname, join, resolve } from 'node:path';
-import { prepareReportSample } from '../../shared/reportHtml.js';
+import { prepareReportSample, reportSampleFromJson } from '../../shared/reportHtml.js';
 import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { sha256Hex, stableStringify } from '../../src/batch/hash.js';
 import { parseManifest, type ManifestRow } from '../../src/batch/manifest.js';
@@ -297,7 +297,12 @@ async function runWithPool(
   });
   try {
     /** Records a finished sample; returns the worker's shared buffers it no longer needs. */
-    const record = (json: string | Uint8Array, brief: SampleResult, reportCurves?: Uint8Array) => {
+    const record = (
+      json: string | Uint8Array,
+      brief: SampleResult,
+      reportCurves?: Uint8Array,
+      summaryText = prepareReportSample(brief),
+    ) => {
       const used: SharedArrayBuffer[] = [];
       const line = typeof json === 'string' ? Buffer.from(json + '\n', 'utf8') : json;
       // Where its text can be read back is set below: results.json's temporary copy, or the journal.
@@ -307,7 +312,7 @@ async function runWithPool(
       // all of them once they are done.
       prepareResultsCsvRow(brief);
       // The worker's curves block is a line: the page takes it without its newline.
-      reportStream?.add(brief.sample, prepareReportSample(brief), reportCurves?.subarray(0, -1));
+      reportStream?.add(brief.sample, summaryText, reportCurves?.subarray(0, -1));
       if (reportCurves) sharedBufferOf(reportCurves, used);
       // Results that go into results.json's temporary copy at once (most) or wait in memory for the
       // ones before them need no journal: a killed batch's copy is read back by --resume. Only those
@@ -328,7 +333,9 @@ async function runWithPool(
       tasks,
       (reply) => {
         // Everything is written by now (synchronously): the worker writes its next replies in them.
-        const back = reply.results.flatMap((r) => record(r.json, r.brief, r.reportCurves));
+        const back = reply.results.flatMap((r) =>
+          record(r.json, reportSampleFromJson(r.briefJson), r.reportCurves, r.briefJson),
+        );
         progress.update(done, failedNow);
         return back;
       },

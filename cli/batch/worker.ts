@@ -9,10 +9,10 @@ import { readFileSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
 import { AxisCache } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
-import { writePackedCurves } from '../../shared/reportHtml.js';
+import { scriptSafeJson, writePackedCurves } from '../../shared/reportHtml.js';
 import type { SampleResult } from '../../shared/schema.js';
 import { sha256Hex } from '../../src/batch/hash.js';
-import { writeSampleResult } from '../../src/batch/resultJson.js';
+import { briefJson, resultTexts, writeSampleResult } from '../../src/batch/resultJson.js';
 import {
   failedSample,
   runGroup,
@@ -157,10 +157,13 @@ parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
   const reply: WorkReply = {
     id: message.id,
     results: results.map((r) => {
-      writeSampleResult(out.reset(), r, axis);
+      // The texts of the result's numbers serve both its line and its brief copy.
+      const texts = resultTexts(r);
+      writeSampleResult(out.reset(), r, axis, texts);
       const json = lineToSend();
       const curves = reportCurves(r);
-      return { json, brief: briefOf(r), ...(curves ? { reportCurves: curves } : {}) };
+      const brief = scriptSafeJson(briefJson(texts));
+      return { json, briefJson: brief, ...(curves ? { reportCurves: curves } : {}) };
     }),
   };
   parentPort!.postMessage(reply);

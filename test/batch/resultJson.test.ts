@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { AxisCache, axisDecimals, writeFitCurves } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
 import type { FitCurves, SampleResult } from '../../shared/schema.js';
-import { sampleResultJson } from '../../src/batch/resultJson.js';
+import { briefJson, resultTexts, sampleResultJson } from '../../src/batch/resultJson.js';
 import { runSample } from '../../src/batch/runSample.js';
 import { parseManifest } from '../../src/batch/manifest.js';
 import { EMPTY_SETTINGS, resolveSampleSettings } from '../../src/batch/settings.js';
@@ -62,6 +62,15 @@ describe('sampleResultJson', () => {
     expect(fitBack).toEqual(JSON.parse(JSON.stringify(fit)));
     expect({ ...back, fit: null }).toEqual(JSON.parse(JSON.stringify({ ...result, fit: null })));
     expect(back.sample).toBe('τ-sample "1"');
+  });
+
+  it('gives the result without its curves as its line does, the fit last', () => {
+    const brief = briefJson(resultTexts(result));
+    const { curves: _c, ...fit } = result.fit!;
+    const { fit: _f, ...rest } = result;
+    expect(brief).toBe(JSON.stringify({ ...rest, fit }));
+    // The line is that text with the curves added last in the fit.
+    expect(text.startsWith(brief.slice(0, -2))).toBe(true);
   });
 
   it('puts the fit last in the sample and the curves last in the fit', () => {

@@ -8,10 +8,13 @@ import {
   prepareReportSample,
   REPORT_CSP,
   REPORT_DATA_ID,
+  reportSampleFromJson,
+  scriptSafeJson,
   unpackCurves,
   type ReportAssets,
 } from '../../shared/reportHtml.js';
 import type { FitCurves, ReportData } from '../../shared/schema.js';
+import { briefJson, resultTexts } from '../../src/batch/resultJson.js';
 import { fixtureReport, fixtureSample } from './fixtures.js';
 
 const assets: ReportAssets = {
@@ -103,6 +106,17 @@ describe('assembleReportHtml', () => {
       samples: ahead.samples.map((s) => (s.fit ? { ...s, fit: { ...s.fit, curves: undefined } } : s)),
     });
     expect(summaryText(assembleReportHtml(assets, ahead))).toBe(aheadExpected);
+  });
+
+  it('keeps the text a result was read from as its summary, the text it would make of it', () => {
+    for (const s of fixtureReport({ samples: 3, channels: 64, extraNames: HOSTILE }).samples) {
+      const text = scriptSafeJson(briefJson(resultTexts(s)));
+      expect(text).not.toMatch(/[<\u2028\u2029]/);
+      const read = reportSampleFromJson(text);
+      expect(prepareReportSample(read)).toBe(text);
+      // Made afresh from an equal object, the summary is the same text.
+      expect(prepareReportSample(JSON.parse(JSON.stringify(read)) as typeof read)).toBe(text);
+    }
   });
 
   it('escapes the title in the head', () => {
