@@ -68,10 +68,11 @@ export class ResultsJsonStream {
 
   /**
    * A finished sample, with its JSON line (ending in a newline) when it is at hand. Says what became
-   * of the line: 'written' into the file (its bytes are free again), 'held' in memory until the samples
-   * before it arrive (the caller must leave its bytes alone), or 'left' to the caller, who keeps it
+   * of the line: 'written' into the file, 'held' in memory (a copy) until the samples before it
+   * arrive, or 'left' to the caller, who keeps it
    * where the entry's `json`/`bytes` can read it (past the memory bound, or when the samples do not
    * arrive as announced). The stream points the entry's `json`/`bytes` at the copy it writes or holds.
+   * The caller's bytes are not used after this returns.
    */
   add(entry: OutputEntry, line?: Uint8Array): 'written' | 'held' | 'left' {
     if (this.unordered) return 'left';
@@ -83,15 +84,19 @@ export class ResultsJsonStream {
     this.entries[at] = entry;
     const kept =
       line !== undefined && (at === this.next || this.heldBytes + line.length <= this.maxHeldBytes);
-    if (kept) {
-      this.held[at] = line;
-      this.heldBytes += line.length;
-      const text = line.subarray(0, line.length - 1);
-      entry.bytes = () => text;
-      entry.json = () => Buffer.from(text).toString('utf8');
-    }
+    // The next one in order is written at once; one that must wait is kept in a copy of its own, so
+    // that the caller's buffer (a worker's, written into again) is free as soon as this returns.
+    if (kept) this.hold(at, entry, at === this.next ? line : line.slice());
     while (this.next < this.entries.length && this.entries[this.next]) this.writeSlot(this.next++);
     return !kept ? 'left' : this.held[at] ? 'held' : 'written';
+  }
+
+  private hold(at: number, entry: OutputEntry, line: Uint8Array): void {
+    this.held[at] = line;
+    this.heldBytes += line.length;
+    const text = line.subarray(0, line.length - 1);
+    entry.bytes = () => text;
+    entry.json = () => Buffer.from(text).toString('utf8');
   }
 
   private writeSlot(i: number): void {

@@ -323,8 +323,7 @@ async function runWithPool(
         entry.json = () => journal.read(at);
         entry.bytes = () => journal.readBytesTransient(at);
       }
-      // Bytes held for results.json are kept until written; their buffer is not handed back.
-      if (placed !== 'held' && typeof json !== 'string') sharedBufferOf(json, used);
+      if (typeof json !== 'string') sharedBufferOf(json, used);
       done++;
       if (brief.status === 'failed') failedNow++;
       return used;
