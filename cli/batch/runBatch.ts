@@ -148,12 +148,6 @@ function previousResults(
 /** Runs a batch to completion (or until stopped) and writes its outputs. Throws InputError for an unusable manifest or settings file. */
 export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> {
   const version = packageVersion();
-  const manifestPath = options.manifestPath;
-  const manifest = parseManifest(readTextFile(manifestPath), { source: manifestPath });
-  const settings = options.settingsPath
-    ? parseSettings(readTextFile(options.settingsPath), { source: options.settingsPath })
-    : EMPTY_SETTINGS;
-  // The worker threads load their modules while the rows are resolved and the files checked.
   const setup: WorkerSetup = {
     lumirateVersion: version,
     curves: options.curves !== false,
@@ -167,9 +161,16 @@ export async function runBatch(options: BatchRunOptions): Promise<BatchSummary> 
   // (hundreds of times in some runs of 1000 decays, each time finishing a loop of 4096 channels
   // unoptimised). Flags are per process; this one only changes when code is optimised.
   setFlagsFromString('--no-use-osr');
+  // The worker threads load their modules while the manifest is read, the rows resolved and the
+  // files checked (a thread the manifest turns out not to need is ended unused).
   const pool = new WorkerPool<WorkTask, WorkReply>(siblingModule(import.meta.url, 'worker'), jobs, setup);
-  pool.prestart(manifest.rows.length);
+  pool.prestart();
   try {
+    const manifestPath = options.manifestPath;
+    const manifest = parseManifest(readTextFile(manifestPath), { source: manifestPath });
+    const settings = options.settingsPath
+      ? parseSettings(readTextFile(options.settingsPath), { source: options.settingsPath })
+      : EMPTY_SETTINGS;
     return await runWithPool(options, manifest, settings, version, pool);
   } finally {
     await pool.close();
