@@ -108,6 +108,7 @@ export class ReportStream {
 
   private setRoom(): void {
     const a = this.assets;
+    // The scripts and styles, and 4 kB for the tags, the title and the summary's other fields.
     const fixed = 4096 + [a.appJs, a.appCss, a.uplotJs, a.uplotCss].reduce((n, s) => n + byteLength(s), 0);
     const samples = this.slotOf.size;
     this.room = Math.ceil(
