@@ -6,6 +6,8 @@
  *
  * Stages: on this thread, the CPU time of each step a worker takes for a sample (read, parse, fit,
  * writing its results.json line and its report curves block; `JSON.stringify(fit)` for comparison).
+ * They run somewhat slower here than in the CLI's workers, where no buffer is ever detached (see
+ * `machineSpeedMsFresh`).
  * Then the whole CLI: the batch's thread only appends the workers' bytes to results.json (written
  * in manifest order as samples arrive) and report.html (curves blocks as they arrive), and at the end
  * writes the report's head and the tables.
@@ -17,14 +19,20 @@
  * IRF file is shared by every row, as in a real session.
  *
  * Peak memory: the CLI runs its workers as threads of one process, so the process's VmHWM (peak
- * resident set, from /proc/<pid>/status, polled every 10 ms until exit) covers them all. CPU time is
- * read from /proc/<pid>/stat by the same poll (so it misses at most the last 10 ms), and each run
- * prints the machine's load average at its start: on a shared machine a 1 → 2 worker speed-up in wall
- * time needs two idle cores. The CPU time of each thread (from /proc/<pid>/task) is printed too: the
- * batch's own thread, then the others, largest first: the worker threads, and V8's helper threads,
- * which compile hot functions (each worker thread compiles its own) and collect garbage alongside.
+ * resident set, from /proc/<pid>/status, polled every 100 ms until exit) covers them all. CPU time
+ * is the whole process's, exact: this process's children's time (/proc/self/stat) before and after
+ * the run. Each run prints the machine's load average at its start: on a shared machine a 1 → 2
+ * worker speed-up in wall time needs two idle cores. The CPU time of each thread (from
+ * /proc/<pid>/task, by the same poll, so up to the last 100 ms) is printed too: the batch's own
+ * thread, then the others, largest first: the worker threads, and V8's helper threads, which compile
+ * hot functions (each worker thread compiles its own) and collect garbage alongside.
  *
- * `BENCH_BATCH_N` changes the number of decays (default 1000).
+ * The poll is kept slow on purpose: reading those files every 10 ms slowed the run it watched by
+ * ~0.1 s (the kernel takes locks of the process being read, which its page faults also need).
+ *
+ * Each configuration runs `BENCH_BATCH_RUNS` times (default 3), 1 and 2 workers in turn; the median
+ * run is shown, with every run's wall time. `BENCH_BATCH_N` changes the number of decays (default
+ * 1000).
  */
 import { spawn } from 'node:child_process';
 import {
@@ -52,6 +60,7 @@ import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
 import { machineSpeedLine } from './machineSpeed.js';
 
 const N = Number(process.env.BENCH_BATCH_N ?? 1000);
+const RUNS = Math.max(1, Number(process.env.BENCH_BATCH_RUNS ?? 3));
 const cores = availableParallelism();
 const root = join(import.meta.dirname, '..', '..');
 const cli = join(root, 'dist', 'cli', 'main.js');
@@ -194,10 +203,18 @@ try {
     /** The machine's 1-minute load average when the run started: other work competes for the cores. */
     load: number;
   }
+  // The fields of a /proc stat file after the command name (field 3 onward).
+  const statFields = (stat: string) => stat.slice(stat.lastIndexOf(')') + 2).split(' ');
   // utime and stime, fields 14 and 15 of /proc/<pid>/stat, counted in clock ticks (100 per second on Linux).
   const cpuTicks = (stat: string) => {
-    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    const f = statFields(stat);
     return Number(f[11]) + Number(f[12]);
+  };
+  // cutime and cstime, fields 16 and 17 of /proc/self/stat: the time of this process's children that
+  // have ended and been waited for (the run, once its exit is seen).
+  const childrenTicks = () => {
+    const f = statFields(readFileSync('/proc/self/stat', 'utf8'));
+    return Number(f[13]) + Number(f[14]);
   };
   const runOnce = (jobs: number, extra: string[]): Promise<Run> =>
     new Promise((resolve) => {
@@ -213,14 +230,13 @@ try {
       let stderr = '';
       child.stderr.on('data', (d) => (stderr += d));
       let peakKb = 0;
-      let ticks = 0;
+      const ticksBefore = childrenTicks();
       const threadTicks = new Map<string, number>();
       const load = loadavg()[0];
       const poll = setInterval(() => {
         try {
           const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${child.pid}/status`, 'utf8'));
           if (m) peakKb = Math.max(peakKb, Number(m[1]));
-          ticks = Math.max(ticks, cpuTicks(readFileSync(`/proc/${child.pid}/stat`, 'utf8')));
           for (const tid of readdirSync(`/proc/${child.pid}/task`)) {
             try {
               const t = cpuTicks(readFileSync(`/proc/${child.pid}/task/${tid}/stat`, 'utf8'));
@@ -232,7 +248,7 @@ try {
         } catch {
           // the process has just ended
         }
-      }, 10);
+      }, 100);
       child.on('exit', (code) => {
         const wallS = (performance.now() - start) / 1000;
         clearInterval(poll);
@@ -244,7 +260,7 @@ try {
         const others = [...threadTicks.values()].filter((t) => t > 0).sort((a, b) => b - a);
         resolve({
           wallS,
-          cpuS: ticks / 100,
+          cpuS: (childrenTicks() - ticksBefore) / 100,
           threadCpuS: [main, ...others].map((t) => t / 100),
           peakMb: peakKb / 1024,
           code,
@@ -260,19 +276,27 @@ try {
   ];
   for (const v of variants) {
     // The host may be slower now than a minute ago: the same loop the fit benchmark times, per block.
-    console.log(`\n${v.label}\n  ${machineSpeedLine()}`);
+    console.log(`\n${v.label}\n  ${machineSpeedLine({ fresh: true })}`);
+    // Several runs, 1 and 2 workers in turn: the host's speed drifts, and one run says little.
+    const runs: Record<number, Run[]> = { 1: [], 2: [] };
+    for (let k = 0; k < RUNS; k++) for (const jobs of [1, 2]) runs[jobs].push(await runOnce(jobs, v.extra));
     const results: Record<number, Run> = {};
     for (const jobs of [1, 2]) {
-      const r = await runOnce(jobs, v.extra);
+      const all = runs[jobs];
+      const r = all.slice().sort((a, b) => a.wallS - b.wallS)[(all.length - 1) >> 1];
       results[jobs] = r;
+      const walls = all.map((x) => x.wallS.toFixed(2)).join(', ');
+      const peakMb = Math.max(...all.map((x) => x.peakMb));
+      const ok = Math.min(...all.map((x) => x.ok));
+      const codes = [...new Set(all.map((x) => x.code))].join('/');
       console.log(
-        `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall, ${(N / r.wallS).toFixed(0)} decays/s, ${r.cpuS.toFixed(1)} s CPU (≥), peak RSS ${r.peakMb.toFixed(0)} MB, ${r.ok}/${N} ok, exit ${r.code}, load ${r.load.toFixed(1)}`,
+        `  --jobs ${jobs}: ${r.wallS.toFixed(2)} s wall (median of ${all.length}: ${walls}), ${(N / r.wallS).toFixed(0)} decays/s, ${r.cpuS.toFixed(1)} s CPU, peak RSS ${peakMb.toFixed(0)} MB (most of any run), ${ok}/${N} ok, exit ${codes}, load ${r.load.toFixed(1)}`,
       );
     }
     for (const jobs of [1, 2]) {
       const [main, ...others] = results[jobs].threadCpuS;
       console.log(
-        `  --jobs ${jobs} CPU by thread: main ${main.toFixed(2)} s; others ${others.map((t) => t.toFixed(2)).join(', ')} s`,
+        `  --jobs ${jobs} CPU by thread (median run): main ${main.toFixed(2)} s; others ${others.map((t) => t.toFixed(2)).join(', ')} s`,
       );
     }
     console.log(
