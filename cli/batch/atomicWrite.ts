@@ -32,11 +32,11 @@ export class AtomicFile {
     this.flush?.due();
   }
 
-  /** Writes `bytes` at `position` in the file (which grows as needed); returns the number written. */
-  writeAt(bytes: Uint8Array, position: number): number {
-    const n = writeSync(this.fd, bytes, 0, bytes.length, position);
+  /** Writes all of `bytes` at `position` in the file (which grows as needed). */
+  writeAt(bytes: Uint8Array, position: number): void {
+    for (let done = 0; done < bytes.length;)
+      done += writeSync(this.fd, bytes, done, bytes.length - done, position + done);
     this.flush?.due();
-    return n;
   }
 
   private flush: BackgroundFlush | null = null;

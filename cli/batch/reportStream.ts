@@ -121,14 +121,9 @@ export class ReportStream {
     for (const w of this.waiting.splice(0)) this.writeBlock(w.sample, w.slot, w.bytes);
   }
 
-  private writeAt(bytes: Uint8Array, position: number): void {
-    let done = 0;
-    while (done < bytes.length) done += this.file.writeAt(bytes.subarray(done), position + done);
-  }
-
   /** Appends `bytes` after the blocks written so far. */
   private put(bytes: Uint8Array): void {
-    this.writeAt(bytes, this.end);
+    this.file.writeAt(bytes, this.end);
     this.end += bytes.length;
   }
 
@@ -190,7 +185,7 @@ export class ReportStream {
               size += head[k].length;
               batch.push(head[k++]);
             }
-            this.writeAt(batch.length === 1 ? batch[0] : Buffer.concat(batch, size), at);
+            this.file.writeAt(batch.length === 1 ? batch[0] : Buffer.concat(batch, size), at);
             at += size;
           }
           this.back.close();
