@@ -28,7 +28,8 @@ export class AtomicFile {
   }
 
   write(chunk: string | Uint8Array): void {
-    writeSync(this.fd, typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk);
+    const bytes = typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : chunk;
+    for (let done = 0; done < bytes.length;) done += writeSync(this.fd, bytes, done, bytes.length - done);
     this.flush?.due();
   }
 

@@ -5,6 +5,7 @@ import { byManifestOrder } from '../../src/batch/merge.js';
 import { AtomicFile, temporaryName, writeFileAtomicDeferred } from './atomicWrite.js';
 import { completeJsonLines } from './journal.js';
 import { ReadBack } from './readBack.js';
+import { SpareBuffers, roomFor } from './spareBuffers.js';
 import type { OutputEntry } from './writeOutputs.js';
 
 /** Bytes of out-of-order results kept in memory before later ones are left in the journal. */
@@ -36,6 +37,8 @@ export class ResultsJsonStream {
   private offset = 0;
   /** For reading written lines back (an entry's `json`/`bytes`). */
   private readonly back: ReadBack;
+  /** Buffers of held lines already written, to hold later ones in. */
+  private readonly spare = new SpareBuffers<ArrayBuffer>();
 
   /** `expected`: every sample the batch will output, in any order. */
   constructor(
@@ -86,9 +89,19 @@ export class ResultsJsonStream {
       line !== undefined && (at === this.next || this.heldBytes + line.length <= this.maxHeldBytes);
     // The next one in order is written at once; one that must wait is kept in a copy of its own, so
     // that the caller's buffer (a worker's, written into again) is free as soon as this returns.
-    if (kept) this.hold(at, entry, at === this.next ? line : line.slice());
+    if (kept) this.hold(at, entry, at === this.next ? line : this.copyOf(line));
     while (this.next < this.entries.length && this.entries[this.next]) this.writeSlot(this.next++);
     return !kept ? 'left' : this.held[at] ? 'held' : 'written';
+  }
+
+  private copyOf(line: Uint8Array): Uint8Array {
+    const copy = new Uint8Array(
+      this.spare.take(line.length) ?? new ArrayBuffer(roomFor(line.length)),
+      0,
+      line.length,
+    );
+    copy.set(line);
+    return copy;
   }
 
   private hold(at: number, entry: OutputEntry, line: Uint8Array): void {
@@ -110,6 +123,8 @@ export class ResultsJsonStream {
       this.heldBytes -= line.length;
     } else this.put(e.bytes ? e.bytes() : e.json());
     this.readFromFile(e, start, this.offset - start);
+    // The entry now reads its text from the file: a copy held for it can take a later line.
+    if (line && line.buffer instanceof ArrayBuffer) this.spare.give(line.buffer);
   }
 
   /** Completes the file and renames it into place. `ordered`: all entries, in manifest order. */

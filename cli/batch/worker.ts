@@ -5,7 +5,7 @@
  * written.
  * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
  */
-import { readFileSync } from 'node:fs';
+import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
 import { AxisCache } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
@@ -25,6 +25,7 @@ import {
 import { InputError } from '../../src/errors.js';
 import { decodeText } from '../../src/io/decodeText.js';
 import type { RecycleMessage } from './pool.js';
+import { SpareBuffers, roomFor } from './spareBuffers.js';
 import {
   briefOf,
   type FileToRead,
@@ -37,10 +38,41 @@ import {
 const setup = workerData as WorkerSetup;
 const cache: HistogramCache = new Map();
 
-function readInput(f: FileToRead): InputFile {
-  let bytes: Buffer;
+/**
+ * The buffer every input file is read into, grown as needed. A fresh buffer per file (~100 kB for a
+ * 4096-channel histogram) was handed back to the system when collected and faulted in again for the
+ * next file, a cost of its own on a virtual machine. Its bytes are used only until the file's text
+ * and hash are made.
+ */
+let readBuffer = Buffer.allocUnsafe(1 << 17);
+
+/** The whole file, in `readBuffer` (valid until the next read). */
+function readBytes(path: string): Uint8Array {
+  const fd = openSync(path, 'r');
   try {
-    bytes = readFileSync(f.absolutePath);
+    const size = fstatSync(fd).size;
+    if (readBuffer.length <= size) readBuffer = Buffer.allocUnsafe(size + (size >> 3) + 1);
+    let n = 0;
+    for (;;) {
+      // A file that grew since its size was read.
+      if (n === readBuffer.length) {
+        const bigger = Buffer.allocUnsafe(2 * n);
+        readBuffer.copy(bigger, 0, 0, n);
+        readBuffer = bigger;
+      }
+      const got = readSync(fd, readBuffer, n, readBuffer.length - n, null);
+      if (got === 0) return readBuffer.subarray(0, n);
+      n += got;
+    }
+  } finally {
+    closeSync(fd);
+  }
+}
+
+function readInput(f: FileToRead): InputFile {
+  let bytes: Uint8Array;
+  try {
+    bytes = readBytes(f.absolutePath);
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
     const why =
@@ -114,8 +146,7 @@ const out = new JsonBytes(1 << 18);
 const axis = new AxisCache();
 
 /** Shared buffers the batch's thread has handed back after using a reply, to write the next ones into. */
-const spare: SharedArrayBuffer[] = [];
-const MAX_SPARE = 8;
+const spare = new SpareBuffers<SharedArrayBuffer>();
 
 /**
  * What `out` holds, with a newline, in a shared buffer: the smallest spare one that fits, else a new
@@ -129,10 +160,7 @@ const MAX_SPARE = 8;
  */
 function lineToSend(): Uint8Array {
   const n = out.length + 1;
-  let best = -1;
-  for (let k = 0; k < spare.length; k++)
-    if (spare[k].byteLength >= n && (best < 0 || spare[k].byteLength < spare[best].byteLength)) best = k;
-  const buffer = best >= 0 ? spare.splice(best, 1)[0] : new SharedArrayBuffer(n + (n >> 3));
+  const buffer = spare.take(n) ?? new SharedArrayBuffer(roomFor(n));
   const line = new Uint8Array(buffer, 0, n);
   line.set(out.view());
   line[n - 1] = 10;
@@ -149,8 +177,7 @@ function reportCurves(r: SampleResult): Uint8Array | undefined {
 
 parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
   if ('recycle' in message) {
-    spare.push(...message.recycle);
-    if (spare.length > MAX_SPARE) spare.sort((a, b) => b.byteLength - a.byteLength).length = MAX_SPARE;
+    spare.give(...message.recycle);
     return;
   }
   const results = runTask(message).map(withoutCurves);

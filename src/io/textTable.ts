@@ -6,8 +6,10 @@ import {
   SINGLE_COLUMN,
   WHITESPACE,
   scanDecimal,
+  scanCount,
   scanEnd,
   scanNumericRows,
+  type NumericRows,
 } from './scanNumericRows.js';
 
 // The CSV package ships as CommonJS. Loaded through `require`, the engine need not scan its source for
@@ -46,7 +48,9 @@ export interface TextTable {
   rowCount: number;
   /**
    * Every cell's value, by column, when every cell is a plain decimal number (the fast path read
-   * them while splitting); entries past `rowCount` are spare. Absent otherwise.
+   * them while splitting); entries past `rowCount` are spare. Absent otherwise. The arrays may be
+   * reused when another table is read: take values through `parseColumnNumbers` or `cellNumber`, or
+   * read this property again after reading another table.
    */
   numbers?: Float64Array[];
   /** `# key: value` metadata, keys normalised (see `normaliseMetadataKey`). */
@@ -326,15 +330,28 @@ function readPlainTable(text: string, source: string): TextTable | null {
   const { first, header } = firstRow(cells);
   const dataStart = header ? Math.min(pos, text.length) : firstStart;
   let columns = header ?? first.map((_, j) => `col${j + 1}`);
-  let scanned = scanNumericRows(text, dataStart, first.length, separator);
+  let width = first.length;
+  let scanned = scanNumericRows(text, dataStart, width, separator);
   if (!scanned && header && delimiter === 'whitespace') {
     // Rows as wide as the header with its units joined to their names take those names.
     const joined = joinUnitsToNames(firstText);
-    if (joined.length !== header.length) scanned = scanNumericRows(text, dataStart, joined.length, separator);
+    width = joined.length;
+    if (joined.length !== header.length) scanned = scanNumericRows(text, dataStart, width, separator);
     columns = joined;
   }
   if (!scanned || (header && headerProblem(columns, line, source))) return null;
-  return new ScannedTable(text, source, delimiter, scanned, header, columns, sink, header ? line : null);
+  const scan = { start: dataStart, width, separator };
+  return new ScannedTable(
+    text,
+    source,
+    delimiter,
+    scanned,
+    scan,
+    header,
+    columns,
+    sink,
+    header ? line : null,
+  );
 }
 
 /**
@@ -346,17 +363,21 @@ function readPlainTable(text: string, source: string): TextTable | null {
 class ScannedTable implements TextTable {
   readonly decimalMark: TextTable['decimalMark'];
   readonly rowCount: number;
-  readonly numbers: Float64Array[];
   readonly metadata: Record<string, string>;
   readonly metadataLines: Record<string, number>;
   readonly warnings: string[];
   private cellRows: TableRow[] | null = null;
+  /** The scanner's columns, and the scan they come from (see `scanCount`). */
+  private scannedColumns: Float64Array[];
+  private scanId: number;
 
   constructor(
     private readonly text: string,
     readonly source: string,
     readonly delimiter: TextTable['delimiter'],
-    scanned: { decimalMark: TextTable['decimalMark']; rowCount: number; columns: Float64Array[] },
+    scanned: NumericRows,
+    /** Where and how the scanner read the rows, to read them again. */
+    private readonly scan: { start: number; width: number; separator: number },
     readonly header: string[] | null,
     readonly columns: string[],
     sink: MetadataSink,
@@ -364,10 +385,24 @@ class ScannedTable implements TextTable {
   ) {
     this.decimalMark = scanned.decimalMark;
     this.rowCount = scanned.rowCount;
-    this.numbers = scanned.columns;
+    this.scannedColumns = scanned.columns;
+    this.scanId = scanCount();
     this.metadata = sink.metadata;
     this.metadataLines = sink.metadataLines;
     this.warnings = sink.warnings;
+  }
+
+  /**
+   * The scanner shares its arrays with the next scan (of any file): when one has run since, this
+   * table's text is scanned again, to the same numbers.
+   */
+  get numbers(): Float64Array[] {
+    if (this.scanId !== scanCount()) {
+      const { start, width, separator } = this.scan;
+      this.scannedColumns = scanNumericRows(this.text, start, width, separator)!.columns;
+      this.scanId = scanCount();
+    }
+    return this.scannedColumns;
   }
 
   get rows(): TableRow[] {

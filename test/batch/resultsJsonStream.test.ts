@@ -76,6 +76,29 @@ describe('ResultsJsonStream', () => {
     expect((JSON.parse(text) as SampleResult[]).map((r) => r.sample)).toEqual(['a', 'b', 'c', 'd', 'e']);
   });
 
+  it('holds many early lines in reused buffers without one line overwriting another', async () => {
+    const dir = tempDir();
+    const path = join(dir, 'results.json');
+    // Lines of different lengths, arriving in blocks of five in reverse order: each block waits for
+    // its first sample, and the buffers of one block's held lines serve the next block's.
+    const many = Array.from({ length: 40 }, (_, i) => ({
+      ...sample(`s${i}`, i + 1),
+      pad: 'x'.repeat((i * 37) % 23),
+    })) as SampleResult[];
+    const shuffled = many.map((_, i) => many[i - (i % 5) + 4 - (i % 5)]);
+    const stream = new ResultsJsonStream(path, many);
+    const got = arrivals(dir, shuffled);
+    got.forEach(({ entry, line }, k) => {
+      expect(stream.add(entry, line)).toBe(k % 5 === 4 ? 'written' : 'held');
+      line.fill(32);
+      // Every entry so far still reads its own result, from a held copy or from the file.
+      for (const g of got.slice(0, k + 1)) expect(JSON.parse(g.entry.json())).toEqual(g.entry.brief);
+    });
+    const entries = got.map((g) => g.entry);
+    await stream.finish(entries.slice().sort((a, b) => byManifestOrder(a.brief, b.brief)));
+    expect(readFileSync(path, 'utf8')).toBe(writtenWhole(dir, entries));
+  });
+
   it('writes nothing under the final name until it finishes', () => {
     const dir = tempDir();
     const path = join(dir, 'results.json');

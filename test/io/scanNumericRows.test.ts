@@ -4,6 +4,7 @@ import { InputError } from '../../src/errors.js';
 import { histogramFromTable, parseHistogramText } from '../../src/io/parseHistogram.js';
 import { COMMA_MARK, POINT_MARK, scanDecimal, scanEnd } from '../../src/io/scanNumericRows.js';
 import {
+  cellNumber,
   parseColumnNumbers,
   readGeneralTable,
   readTextTable,
@@ -204,6 +205,15 @@ describe('the fast path of the table reader', () => {
     expect(table.numbers).toBeDefined();
     expect(table.rowCount).toBe(301);
     expect(Array.from(parseColumnNumbers(table, 0).subarray(299))).toEqual([299, 300]);
+  });
+
+  it("keeps a table's numbers when another file is read after it (the scanner reuses its arrays)", () => {
+    const a = readTextTable('time_ns,c\n0,5\n1,7\n2,9\n', 'a.csv');
+    const b = readTextTable('time_ns,c\n0,100\n1,200\n', 'b.csv');
+    expect(Array.from(parseColumnNumbers(a, 1))).toEqual([5, 7, 9]);
+    expect(cellNumber(a, 2, 0)).toBe(2);
+    expect(Array.from(parseColumnNumbers(b, 1))).toEqual([100, 200]);
+    expect(Array.from(histogramFromTable(a, { source: 'a.csv' }).counts)).toEqual([5, 7, 9]);
   });
 
   it('joins a unit to its name in a whitespace header when that makes it as wide as the rows', () => {
