@@ -16,8 +16,6 @@ import { reportCurvesOf, type OutputEntry } from './writeOutputs.js';
 const RESULTS_BEFORE_RESERVING = 16;
 /** Margin on the largest summary and curves block seen by then. */
 const ROOM_MARGIN = 1.25;
-/** Bytes gathered into one write when the head is written. */
-const WRITE_BATCH_BYTES = 1 << 20;
 /** Room per series, and per point of one (a series' JSON holds about 200 bytes per point). */
 const SERIES_BYTES = 8192;
 const SERIES_BYTES_PER_POINT = 512;
@@ -168,26 +166,15 @@ export class ReportStream {
           if (block !== null) this.writeBlock(e.brief.sample, k, bytesOf(block));
         }
         const first = ordered.length ? this.blockOf(ordered[0]) : null;
-        // The head as bytes, piece by piece (a summary of megabytes is never one string).
-        const head = Array.from(reportHeadPieces(this.assets, data, first), bytesOf);
-        const headBytes = head.reduce((n, p) => n + p.length, 0);
+        // The head piece by piece (a summary of megabytes is never one string).
+        const head = Array.from(reportHeadPieces(this.assets, data, first));
+        const headBytes = head.reduce((n, p) => n + byteLength(p), 0);
         if (headBytes <= this.room) {
           this.put(bytesOf(REPORT_END));
           const blank = Buffer.alloc(this.room - headBytes, 32);
           if (blank.length) blank[blank.length - 1] = 10;
           head.push(blank);
-          // Written in a few large pieces rather than thousands of small ones.
-          let at = 0;
-          for (let k = 0; k < head.length;) {
-            const batch: Uint8Array[] = [];
-            let size = 0;
-            while (k < head.length && (size === 0 || size + head[k].length <= WRITE_BATCH_BYTES)) {
-              size += head[k].length;
-              batch.push(head[k++]);
-            }
-            this.file.writeAt(batch.length === 1 ? batch[0] : Buffer.concat(batch, size), at);
-            at += size;
-          }
+          this.file.writePieces(head, 0);
           this.back.close();
           return this.file.commitDeferred();
         }

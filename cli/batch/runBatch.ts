@@ -13,7 +13,7 @@ import {
   settingsRecord,
   type RunContext,
 } from '../../src/batch/sampleRecord.js';
-import { prepareResultsCsvRow } from '../../src/batch/outputs.js';
+import { prepareResultsCsvRow, prepareSummaryRow } from '../../src/batch/outputs.js';
 import { runSeries } from '../../src/batch/series.js';
 import {
   EMPTY_SETTINGS,
@@ -315,9 +315,10 @@ async function runWithPool(
       // Where its text can be read back is set below: results.json's temporary copy, or the journal.
       const entry: OutputEntry = { brief, json: () => '' };
       entries.push(entry);
-      // Its row of results.csv and its part of the report now, while the threads fit, rather than
-      // all of them once they are done.
+      // Its rows of results.csv and summary.md and its part of the report now, while the threads
+      // fit, rather than all of them once they are done.
       prepareResultsCsvRow(brief);
+      prepareSummaryRow(brief);
       // The worker's curves block is a line: the page takes it without its newline.
       reportStream?.add(brief.sample, summaryText, reportCurves?.subarray(0, -1));
       if (reportCurves) sharedBufferOf(reportCurves, used);

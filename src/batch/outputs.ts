@@ -79,15 +79,20 @@ interface CsvRowParts {
   tail: string;
 }
 
+/** `make(s)`, made once per result and kept with it. */
+function keptFor<T>(kept: WeakMap<SampleResult, T>, s: SampleResult, make: (s: SampleResult) => T): T {
+  let value = kept.get(s);
+  if (value === undefined) {
+    value = make(s);
+    kept.set(s, value);
+  }
+  return value;
+}
+
 const csvRows = new WeakMap<SampleResult, CsvRowParts>();
 
 function csvRowOf(s: SampleResult): CsvRowParts {
-  let row = csvRows.get(s);
-  if (!row) {
-    row = csvRowParts(s);
-    csvRows.set(s, row);
-  }
-  return row;
+  return keptFor(csvRows, s, csvRowParts);
 }
 
 /** Formats a result's row of results.csv ahead of `formatResultsCsv` (same text either way). */
@@ -165,6 +170,65 @@ function escapeMd(text: string): string {
  * summary.md: a table ready to paste into a manuscript. Each value is rounded to its uncertainty
  * (shared/format.ts); units sit in the header. Failed samples follow in a list with their errors.
  */
+/**
+ * A fitted sample's row of summary.md in the pieces that do not depend on the rest of the batch
+ * (which columns there are), each piece its cells joined: kept per result as for results.csv, so that
+ * a batch rounds each row as its sample arrives (`prepareSummaryRow`).
+ */
+interface SummaryRowParts {
+  sample: string;
+  /** τᵢ and fᵢ of each component. */
+  components: string[];
+  /** Both average lifetimes and χ²red. */
+  averages: string;
+  global: string;
+  /** Φ, k_r, k_nr. */
+  rates: string;
+  /** k_r,SB and k_r/k_r,SB. */
+  sb: string;
+}
+
+const summaryRows = new WeakMap<SampleResult, SummaryRowParts>();
+
+function summaryRowOf(s: SampleResult): SummaryRowParts {
+  return keptFor(summaryRows, s, summaryRowParts);
+}
+
+/** Rounds a fitted result's row of summary.md ahead of `formatSummaryMarkdown` (same text either way). */
+export function prepareSummaryRow(s: SampleResult): void {
+  if (s.status === 'ok' && s.fit) summaryRowOf(s);
+}
+
+function summaryRowParts(s: SampleResult): SummaryRowParts {
+  const f = s.fit!;
+  const joined = (cells: string[]) => cells.join(' | ');
+  return {
+    sample: escapeMd(s.sample),
+    components: f.components.map((c) =>
+      joined([cell(c.tauNs, c.tauErrNs), cell(c.intensityFraction, c.intensityFractionErr)]),
+    ),
+    averages: joined([
+      cell(f.tauAmpAvgNs, f.tauAmpAvgErrNs),
+      cell(f.tauIntAvgNs, f.tauIntAvgErrNs),
+      formatNumber(f.chi2Reduced, { digits: 3 }),
+    ]),
+    global: s.global ? formatNumber(s.global.chi2Reduced, { digits: 3 }) : '–',
+    rates: joined([
+      cell(s.rates?.qy, s.rates?.qyErr),
+      cell(s.rates?.krPerS, s.rates?.krErrPerS),
+      cell(s.rates?.knrPerS, s.rates?.knrErrPerS),
+    ]),
+    sb: joined([
+      cell(s.sb?.krSbPerS, undefined),
+      s.sb?.krRatio === undefined
+        ? '–'
+        : s.sb.krRatioErr
+          ? cell(s.sb.krRatio, s.sb.krRatioErr)
+          : formatNumber(s.sb.krRatio, { digits: 3 }),
+    ]),
+  };
+}
+
 export function formatSummaryMarkdown(
   samples: SampleResult[],
   series: SeriesResult[] = [],
@@ -184,34 +248,16 @@ export function formatSummaryMarkdown(
   const out: string[] = [`# ${title}`, ''];
   out.push(`${ok.length} of ${samples.length} samples fitted.`, '');
   out.push(`| ${head.join(' | ')} |`, `|${head.map((_, k) => (k === 0 ? ':---' : '---:')).join('|')}|`);
+  // A sample with fewer components leaves the rest of the component columns empty.
+  const emptyComponent = `${cell(undefined, undefined)} | ${cell(undefined, undefined)}`;
   for (const s of ok) {
-    const f = s.fit!;
-    const row = [escapeMd(s.sample)];
-    for (let i = 0; i < nc; i++) {
-      const c = f.components[i];
-      row.push(cell(c?.tauNs, c?.tauErrNs), cell(c?.intensityFraction, c?.intensityFractionErr));
-    }
-    row.push(
-      cell(f.tauAmpAvgNs, f.tauAmpAvgErrNs),
-      cell(f.tauIntAvgNs, f.tauIntAvgErrNs),
-      formatNumber(f.chi2Reduced, { digits: 3 }),
-    );
-    if (hasGlobal) row.push(s.global ? formatNumber(s.global.chi2Reduced, { digits: 3 }) : '–');
-    if (hasRates)
-      row.push(
-        cell(s.rates?.qy, s.rates?.qyErr),
-        cell(s.rates?.krPerS, s.rates?.krErrPerS),
-        cell(s.rates?.knrPerS, s.rates?.knrErrPerS),
-      );
-    if (hasSb)
-      row.push(
-        cell(s.sb?.krSbPerS, undefined),
-        s.sb?.krRatio === undefined
-          ? '–'
-          : s.sb.krRatioErr
-            ? cell(s.sb.krRatio, s.sb.krRatioErr)
-            : formatNumber(s.sb.krRatio, { digits: 3 }),
-      );
+    const cells = summaryRowOf(s);
+    const row = [cells.sample];
+    for (let i = 0; i < nc; i++) row.push(cells.components[i] ?? emptyComponent);
+    row.push(cells.averages);
+    if (hasGlobal) row.push(cells.global);
+    if (hasRates) row.push(cells.rates);
+    if (hasSb) row.push(cells.sb);
     out.push(`| ${row.join(' | ')} |`);
   }
   out.push('');

@@ -92,6 +92,24 @@ describe('writeFileAtomic', () => {
     expect(readdirSync(dir)).toEqual(['out.json']);
   });
 
+  it('writes many pieces of text and bytes, small and larger than its buffer, in order', () => {
+    const dir = tempDir();
+    const path = join(dir, 'pieces.txt');
+    // Text with two- to four-byte characters, pieces on both sides of the 1 MB gathering buffer
+    // (a string over a third of it is encoded on its own), and bytes large and small.
+    const pieces: (string | Uint8Array)[] = [];
+    for (let k = 0; k < 3000; k++) pieces.push(`é${k}→𝜏,`, new Uint8Array([65 + (k % 26)]));
+    pieces.push(
+      'ω'.repeat(400_000),
+      new Uint8Array(700_000).fill(66),
+      'end',
+      new Uint8Array(300_000).fill(67),
+    );
+    const expected = Buffer.concat(pieces.map((p) => (typeof p === 'string' ? Buffer.from(p) : p)));
+    writeFileAtomic(path, pieces);
+    expect(readFileSync(path).equals(expected)).toBe(true);
+  });
+
   it('keeps the old file intact when writing the new one fails', () => {
     const dir = tempDir();
     const path = join(dir, 'out.json');

@@ -1,6 +1,11 @@
-import { SCHEMA_VERSION, type SeriesResult } from '../../shared/schema.js';
+import { SCHEMA_VERSION, type SampleResult, type SeriesResult } from '../../shared/schema.js';
 import { describe, expect, it } from 'vitest';
-import { formatErrorsLog, formatResultsCsv, formatSummaryMarkdown } from '../../src/batch/outputs.js';
+import {
+  formatErrorsLog,
+  formatResultsCsv,
+  formatSummaryMarkdown,
+  prepareSummaryRow,
+} from '../../src/batch/outputs.js';
 import { parseCsvCells } from '../../src/batch/csvCells.js';
 import { mergeResults, parseResultsJson } from '../../src/batch/merge.js';
 import { runSeries } from '../../src/batch/series.js';
@@ -38,6 +43,33 @@ describe('summary.md', () => {
     expect(md).toContain('| s1 | 4.02 ± 0.03 |');
     expect(md).toContain("- s2: m.csv line 3, column 2: decay file 'x.csv' not found");
     expect(md).toContain('1 of 2 samples fitted.');
+  });
+
+  it('fills the columns only some samples have, with the same text whether rows were rounded as they arrived', () => {
+    const fresh = () => {
+      const one = fakeSample('one', 1.234, 0.012);
+      const two = fakeSample('two', 4.0213, 0.0342, {}, {
+        rates: { qy: 0.5, qyErr: 0.02, krPerS: 1.2e8, krErrPerS: 5e6, knrPerS: 1.2e8, knrErrPerS: 6e6 },
+        sb: { krSbPerS: 1.1e8, krRatio: 1.09, krRatioErr: 0.06 },
+      } as Partial<SampleResult>);
+      two.fit!.components.push({
+        ...two.fit!.components[0],
+        tauNs: 0.5,
+        tauErrNs: 0.01,
+        intensityFraction: 0.2,
+        intensityFractionErr: 0.01,
+      });
+      return [one, two, failed];
+    };
+    const md = formatSummaryMarkdown(fresh());
+    const arrived = fresh();
+    for (const s of arrived) prepareSummaryRow(s);
+    expect(formatSummaryMarkdown(arrived)).toBe(md);
+    // The one-component sample has no second lifetime, rates or Strickler–Berg values: dashes.
+    expect(md).toContain(
+      '| one | 1.234 ± 0.012 | 1.000 | – | – | 1.234 ± 0.012 | 1.234 ± 0.012 | 1.02 | – | – | – | – | – |',
+    );
+    expect(md).toContain('| two | 4.02 ± 0.03 | 1.000 | 0.500 ± 0.010 | 0.200 ± 0.010 |');
   });
 
   it('adds a series section with parameters and their errors', () => {
