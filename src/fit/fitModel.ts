@@ -118,8 +118,7 @@ function runFit(setup: FitSetup): FitRun {
     base[L.shift] = fix.shiftNs ?? 0;
     if (fix.shiftNs !== undefined) fixed[L.shift] = 1;
   }
-  let peak = i0;
-  for (let i = i0; i < i1; i++) if (counts[i] > counts[peak]) peak = i;
+  const peak = peakIndex(counts, i0, i1);
   if (L.irfCenter >= 0) {
     const window = setup.channels * dt;
     lower[L.irfCenter] = bound('irfCenterNs').min ?? setup.firstEdgeNs;
@@ -247,6 +246,17 @@ function runFit(setup: FitSetup): FitRun {
         : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
     );
   return { model, all: chosen.all, free, freeRow, lm: chosen.lm, lower, upper };
+}
+
+/**
+ * The first channel of the highest count in [i0, i1). A function of its own so that `runFit`, which
+ * runs once per fit and mostly calls others, has no loop over channels: the engine then optimises
+ * it late or not at all, and spends its compiler's time on the loops that matter.
+ */
+function peakIndex(counts: Float64Array, i0: number, i1: number): number {
+  let peak = i0;
+  for (let i = i0; i < i1; i++) if (counts[i] > counts[peak]) peak = i;
+  return peak;
 }
 
 let sharedFull: Float64Array | null = null;
