@@ -5,7 +5,14 @@ import { FWHM_PER_SIGMA } from '../model/gaussianIrf.js';
 import type { DecayModel } from './decayModel.js';
 import { decayModelFor } from './globalBlock.js';
 import { durbinWatson, informationCriteria, residualAutocorrelation, runsTest } from './diagnostics.js';
-import { resolveFitSetup, SHIFT_MAX_NS, TAU_MAX_NS, TAU_MIN_NS, type FitSetup } from './fitSetup.js';
+import {
+  peakIndex,
+  resolveFitSetup,
+  SHIFT_MAX_NS,
+  TAU_MAX_NS,
+  TAU_MIN_NS,
+  type FitSetup,
+} from './fitSetup.js';
 import {
   invertSymmetric,
   levenbergMarquardt,
@@ -246,17 +253,6 @@ function runFit(setup: FitSetup): FitRun {
         : 'the fit failed: the model is 0 where the decay has counts at every starting point (a fixed zero background with counts before the pulse?); free the background or narrow the fit range',
     );
   return { model, all: chosen.all, free, freeRow, lm: chosen.lm, lower, upper };
-}
-
-/**
- * The first channel of the highest count in [i0, i1). A function of its own so that `runFit`, which
- * runs once per fit and mostly calls others, has no loop over channels: the engine then optimises
- * it late or not at all, and spends its compiler's time on the loops that matter.
- */
-function peakIndex(counts: Float64Array, i0: number, i1: number): number {
-  let peak = i0;
-  for (let i = i0; i < i1; i++) if (counts[i] > counts[peak]) peak = i;
-  return peak;
 }
 
 let sharedFull: Float64Array | null = null;
