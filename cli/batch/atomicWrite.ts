@@ -166,10 +166,10 @@ export function writeFileAtomicDeferred(
 
 /** Bytes `AtomicFile.writePieces` gathers into one write. */
 const PIECE_BUFFER_BYTES = 1 << 20;
-let pieces: Buffer | null = null;
+let pieceBufferKept: Buffer | null = null;
 function pieceBuffer(): Buffer {
-  pieces ??= Buffer.allocUnsafe(PIECE_BUFFER_BYTES);
-  return pieces;
+  pieceBufferKept ??= Buffer.allocUnsafe(PIECE_BUFFER_BYTES);
+  return pieceBufferKept;
 }
 
 /** The chunks written to a new temporary file, not yet committed; removed again if writing fails. */
