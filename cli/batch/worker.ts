@@ -7,10 +7,10 @@
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
-import { AxisCache } from '../../shared/curvesJson.js';
+import { AxisCache, writeFitCurves } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
 import { scriptSafeJson, writePackedCurves } from '../../shared/reportHtml.js';
-import type { SampleResult } from '../../shared/schema.js';
+import type { FitCurves, SampleResult } from '../../shared/schema.js';
 import { sha256Hex } from '../../src/batch/hash.js';
 import { briefJson, resultTexts, writeSampleResult } from '../../src/batch/resultJson.js';
 import {
@@ -174,6 +174,42 @@ function reportCurves(r: SampleResult): Uint8Array | undefined {
   writePackedCurves(out.reset(), c);
   return lineToSend();
 }
+
+/**
+ * Arrays made as the fitter makes its curves (`plotCurves`): held in the same kind of array, so that
+ * code meeting these meets the same shapes as with real curves.
+ */
+function curveArray(values: (number | null)[]): (number | null)[] {
+  const a = new Array<number | null>(values.length);
+  for (let i = 0; i < values.length; i++) a[i] = values[i];
+  return a;
+}
+
+/**
+ * Runs the curve writers, a few times, on small made-up curves that take every path they have: a
+ * masked channel, negative and zero values, a rounding that carries into the next power of ten, a
+ * whole number longer than the digits kept, a value on a rounding tie, one below 1e-6. The engine
+ * compiles the writers after their first few thousand values; compiled before they had met a path,
+ * they were thrown away and compiled again when a sample took it, up to five times per thread.
+ */
+function primeCurveWriters(): void {
+  const curves: FitCurves = {
+    timeNs: curveArray([0, 0.0122, 0.0244, 0.0366, 0.0488, 0.061, 0.0732, 0.0854]) as number[],
+    data: curveArray([0, 3, 17, 9999, 123456, 2 ** 31, 5, 0]) as number[],
+    model: curveArray([null, 9.99999996, 99999.996, 12345.678, 1.2345, 3e-7, 0, 2.5]),
+    irf: curveArray([0, 0.000123, 9999.99996, 4.5, 1, 0, 0, 0]) as number[],
+    weightedResiduals: curveArray([null, -1.2345678, 0.9999996, 0, -0.0000001, 2.5, -3, 12.25]),
+    autocorrelation: Array.from(Float64Array.of(1, -0.25, 0.0001, -0.9999996)),
+    fitStartIndex: 1,
+    fitEndIndex: 7,
+  };
+  const w = new JsonBytes(1 << 12);
+  for (let k = 0; k < 20; k++) {
+    writeFitCurves(w.reset(), curves);
+    writePackedCurves(w.reset(), curves);
+  }
+}
+primeCurveWriters();
 
 parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
   if ('recycle' in message) {
