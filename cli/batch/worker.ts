@@ -5,7 +5,7 @@
  * written.
  * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
  */
-import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
+import { closeSync, fstatSync, openSync, readFileSync, readSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
 import { AxisCache, writeFitCurves } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
@@ -50,20 +50,19 @@ let readBuffer = Buffer.allocUnsafe(1 << 17);
 function readBytes(path: string): Uint8Array {
   const fd = openSync(path, 'r');
   try {
-    const size = fstatSync(fd).size;
-    if (readBuffer.length <= size) readBuffer = Buffer.allocUnsafe(size + (size >> 3) + 1);
+    const stat = fstatSync(fd);
+    // A pipe or device has no size to go by: read until its end, in a buffer of its own.
+    if (!stat.isFile()) return readFileSync(fd);
+    const size = stat.size;
+    if (readBuffer.length < size) readBuffer = Buffer.allocUnsafe(size + (size >> 3));
+    // Up to the size read (as readFileSync does): a regular file needs no read that finds its end.
     let n = 0;
-    for (;;) {
-      // A file that grew since its size was read.
-      if (n === readBuffer.length) {
-        const bigger = Buffer.allocUnsafe(2 * n);
-        readBuffer.copy(bigger, 0, 0, n);
-        readBuffer = bigger;
-      }
-      const got = readSync(fd, readBuffer, n, readBuffer.length - n, null);
-      if (got === 0) return readBuffer.subarray(0, n);
+    while (n < size) {
+      const got = readSync(fd, readBuffer, n, size - n, null);
+      if (got === 0) break;
       n += got;
     }
+    return readBuffer.subarray(0, n);
   } finally {
     closeSync(fd);
   }
