@@ -2,7 +2,7 @@
  * `lumirate batch`, `series` and `merge` end to end, on simulated decays whose truth the test sets:
  * a temperature series (Arrhenius k_nr) and a quencher titration (Stern–Volmer), plus three bad rows.
  */
-import { spawn } from 'node:child_process';
+import { execFileSync, spawn } from 'node:child_process';
 import {
   existsSync,
   mkdirSync,
@@ -19,7 +19,7 @@ import type { SampleResult, SeriesResult } from '../../shared/schema.js';
 import { runSeries } from '../../src/batch/series.js';
 import { formatHistogramTable } from '../../src/io/writeTable.js';
 import { simulateTcspc } from '../../src/sim/simulateTcspc.js';
-import { runCliSync } from './runCli.js';
+import { runCli, runCliSync } from './runCli.js';
 
 const root = join(import.meta.dirname, '..', '..');
 const dir = mkdtempSync(join(tmpdir(), 'lumirate-batch-'));
@@ -335,6 +335,31 @@ describe('lumirate batch', () => {
       before.filter((s) => s.status === 'ok'),
     );
   });
+});
+
+describe('lumirate batch input files', () => {
+  // Named pipes: POSIX only (mkfifo).
+  it.skipIf(process.platform === 'win32')(
+    'reads a decay through a named pipe as from the file, and names a directory given as a decay',
+    async () => {
+      const pipe = at('data', 'pipe.csv');
+      execFileSync('mkfifo', [pipe]);
+      writeFileSync(
+        at('pipe-manifest.csv'),
+        'sample,decay,irf,components\nfile,data/T263.15.csv,data/irf.csv,1\npiped,data/pipe.csv,data/irf.csv,1\nfolder,data,data/irf.csv,1\n',
+      );
+      // The batch opens the pipe for reading; a writer on the other end feeds it the file's bytes.
+      const feeding = runCli(['batch', at('pipe-manifest.csv'), '--out', at('piped'), '--jobs', '1']);
+      writeFileSync(pipe, readFileSync(at('data', 'T263.15.csv')));
+      const r = await feeding;
+      expect(r.code).toBe(4);
+      const [file, piped, folder] = readResults(at('piped'));
+      expect(piped.status).toBe('ok');
+      expect(piped.fit?.components).toEqual(file.fit?.components);
+      expect(piped.provenance.inputs[0].sha256).toBe(file.provenance.inputs[0].sha256);
+      expect(folder.error).toMatch(/pipe-manifest\.csv line 4, column 8: decay file 'data' is a directory/);
+    },
+  );
 });
 
 describe('lumirate batch --init', () => {
