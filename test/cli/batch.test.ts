@@ -348,10 +348,18 @@ describe('lumirate batch input files', () => {
         at('pipe-manifest.csv'),
         'sample,decay,irf,components\nfile,data/T263.15.csv,data/irf.csv,1\npiped,data/pipe.csv,data/irf.csv,1\nfolder,data,data/irf.csv,1\n',
       );
-      // The batch opens the pipe for reading; a writer on the other end feeds it the file's bytes.
-      const feeding = runCli(['batch', at('pipe-manifest.csv'), '--out', at('piped'), '--jobs', '1']);
-      writeFileSync(pipe, readFileSync(at('data', 'T263.15.csv')));
-      const r = await feeding;
+      // A writer on the other end feeds the pipe the file's bytes once the batch opens it to read. It
+      // is a process of its own, ended in any case, so that a batch that never opens the pipe cannot
+      // leave this test waiting on it.
+      const writer = spawn('sh', ['-c', 'cat "$0" > "$1"', at('data', 'T263.15.csv'), pipe], {
+        stdio: 'ignore',
+      });
+      let r;
+      try {
+        r = await runCli(['batch', at('pipe-manifest.csv'), '--out', at('piped'), '--jobs', '1']);
+      } finally {
+        writer.kill();
+      }
       expect(r.code).toBe(4);
       const [file, piped, folder] = readResults(at('piped'));
       expect(piped.status).toBe('ok');
