@@ -28,6 +28,21 @@ function bytesOf(piece: string | Uint8Array): Uint8Array {
   return typeof piece === 'string' ? Buffer.from(piece, 'utf8') : piece;
 }
 
+const SPACES = Buffer.alloc(1 << 16, 32);
+const NEWLINE = Uint8Array.of(10);
+
+/**
+ * `bytes` of blank text, the last a newline, as pieces of one buffer of spaces: the head's unused
+ * room is a megabyte or so, and a fresh buffer of that size had to be faulted in page by page.
+ */
+export function blankPieces(bytes: number): Uint8Array[] {
+  const pieces: Uint8Array[] = [];
+  for (let left = bytes - 1; left > 0; left -= SPACES.length)
+    pieces.push(SPACES.subarray(0, Math.min(left, SPACES.length)));
+  if (bytes > 0) pieces.push(NEWLINE);
+  return pieces;
+}
+
 /**
  * report.html, written while the batch runs. The page's head (styles, the summary of every sample,
  * the first sample's curves and the scripts) comes first in the file but is known only at the end,
@@ -171,9 +186,7 @@ export class ReportStream {
         const headBytes = head.reduce((n, p) => n + byteLength(p), 0);
         if (headBytes <= this.room) {
           this.put(bytesOf(REPORT_END));
-          const blank = Buffer.alloc(this.room - headBytes, 32);
-          if (blank.length) blank[blank.length - 1] = 10;
-          head.push(blank);
+          head.push(...blankPieces(this.room - headBytes));
           this.file.writePieces(head, 0);
           this.back.close();
           return this.file.commitDeferred();

@@ -2,7 +2,7 @@ import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
-import { ReportStream } from '../../cli/batch/reportStream.js';
+import { blankPieces, ReportStream } from '../../cli/batch/reportStream.js';
 import type { OutputEntry } from '../../cli/batch/writeOutputs.js';
 import {
   assembleReportHtml,
@@ -107,6 +107,14 @@ describe('ReportStream', () => {
     expect(got.rest.replace(/\n +\n/, '\n')).toBe(want.rest);
     expect(html.endsWith(REPORT_END)).toBe(true);
     expect(html.length - whole.length).toBeLessThan(0.5 * whole.length);
+  });
+
+  it('fills any amount of unused room with spaces and a last newline', () => {
+    for (const bytes of [0, 1, 2, 65535, 65536, 65537, 200_001]) {
+      const blank = Buffer.concat(blankPieces(bytes));
+      expect(blank.length).toBe(bytes);
+      if (bytes) expect(blank.toString('latin1')).toBe(' '.repeat(bytes - 1) + '\n');
+    }
   });
 
   it('makes the blocks of results that came without one from their JSON', async () => {
