@@ -1,30 +1,14 @@
-import {
-  appendFileSync,
-  existsSync,
-  mkdtempSync,
-  readdirSync,
-  readFileSync,
-  rmSync,
-  writeFileSync,
-} from 'node:fs';
-import { tmpdir } from 'node:os';
+import { appendFileSync, existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal, readJournal } from '../../cli/batch/journal.js';
 import { curvesForScript } from '../../shared/reportHtml.js';
 import { fakeCurves } from './fakeResults.js';
 import { removeStaleTemporaries, reportCurvesOf } from '../../cli/batch/writeOutputs.js';
+import { tempDirs } from './tempDirs.js';
 
-const dirs: string[] = [];
-function tempDir(): string {
-  const d = mkdtempSync(join(tmpdir(), 'lumirate-journal-'));
-  dirs.push(d);
-  return d;
-}
-afterEach(() => {
-  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
-});
+const tempDir = tempDirs('lumirate-journal-');
 
 describe('journal', () => {
   it('reads back what was appended, by position and as a whole', () => {

@@ -1,7 +1,7 @@
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { readResultsEntries } from '../../cli/batch/readResults.js';
 import { resultsJsonChunks } from '../../cli/batch/resultsJsonStream.js';
 import { curvesForScript } from '../../shared/reportHtml.js';
@@ -9,17 +9,14 @@ import type { SampleResult } from '../../shared/schema.js';
 import { InputError } from '../../src/errors.js';
 import { errorOf } from './errorOf.js';
 import { fakeCurves, fakeSample } from './fakeResults.js';
+import { tempDirs } from './tempDirs.js';
 
-const dirs: string[] = [];
+const tempDir = tempDirs('lumirate-read-results-');
 function file(name: string, content: string): string {
-  const d = mkdtempSync(join(tmpdir(), 'lumirate-read-results-'));
-  dirs.push(d);
+  const d = tempDir();
   writeFileSync(join(d, name), content);
   return join(d, name);
 }
-afterEach(() => {
-  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
-});
 
 const curves = fakeCurves;
 const withCurves = (s: SampleResult): SampleResult => ({ ...s, fit: { ...s.fit!, curves } });

@@ -1,7 +1,6 @@
-import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { blankPieces, ReportStream } from '../../cli/batch/reportStream.js';
 import type { OutputEntry } from '../../cli/batch/writeOutputs.js';
 import {
@@ -13,16 +12,9 @@ import {
 } from '../../shared/reportHtml.js';
 import type { ReportData, SampleResult } from '../../shared/schema.js';
 import { fixtureReport } from '../viewer/fixtures.js';
+import { tempDirs } from './tempDirs.js';
 
-const dirs: string[] = [];
-function tempDir(): string {
-  const d = mkdtempSync(join(tmpdir(), 'lumirate-report-stream-'));
-  dirs.push(d);
-  return d;
-}
-afterEach(() => {
-  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
-});
+const tempDir = tempDirs('lumirate-report-stream-');
 
 const assets: ReportAssets = {
   appJs: 'window.appLoaded = true; // é',

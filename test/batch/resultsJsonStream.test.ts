@@ -1,15 +1,6 @@
-import {
-  appendFileSync,
-  copyFileSync,
-  existsSync,
-  mkdtempSync,
-  readdirSync,
-  readFileSync,
-  rmSync,
-} from 'node:fs';
-import { tmpdir } from 'node:os';
+import { appendFileSync, copyFileSync, existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { temporaryName, writeFileAtomic } from '../../cli/batch/atomicWrite.js';
 import { Journal } from '../../cli/batch/journal.js';
 import {
@@ -20,16 +11,9 @@ import {
 import type { OutputEntry } from '../../cli/batch/writeOutputs.js';
 import type { SampleResult } from '../../shared/schema.js';
 import { byManifestOrder } from '../../src/batch/merge.js';
+import { tempDirs } from './tempDirs.js';
 
-const dirs: string[] = [];
-function tempDir(): string {
-  const d = mkdtempSync(join(tmpdir(), 'lumirate-results-stream-'));
-  dirs.push(d);
-  return d;
-}
-afterEach(() => {
-  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
-});
+const tempDir = tempDirs('lumirate-results-stream-');
 
 const sample = (name: string, row: number) =>
   ({ sample: name, manifestRow: row, status: 'ok', x: `é${row}` }) as unknown as SampleResult;
