@@ -167,10 +167,6 @@ function escapeMd(text: string): string {
 }
 
 /**
- * summary.md: a table ready to paste into a manuscript. Each value is rounded to its uncertainty
- * (shared/format.ts); units sit in the header. Failed samples follow in a list with their errors.
- */
-/**
  * A fitted sample's row of summary.md in the pieces that do not depend on the rest of the batch
  * (which columns there are), each piece its cells joined: kept per result as for results.csv, so that
  * a batch rounds each row as its sample arrives (`prepareSummaryRow`).
@@ -229,6 +225,10 @@ function summaryRowParts(s: SampleResult): SummaryRowParts {
   };
 }
 
+/**
+ * summary.md: a table ready to paste into a manuscript. Each value is rounded to its uncertainty
+ * (shared/format.ts); units sit in the header. Failed samples follow in a list with their errors.
+ */
 export function formatSummaryMarkdown(
   samples: SampleResult[],
   series: SeriesResult[] = [],
