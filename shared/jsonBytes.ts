@@ -26,6 +26,50 @@ const encoder = new TextEncoder();
 const NUMBER_ROOM = 32;
 const NULL_BYTES = [110, 117, 108, 108];
 
+/** The 64 characters of base64 (RFC 4648, section 4) as character codes. */
+const BASE64_CODES = Uint8Array.from(
+  'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/',
+  (c) => c.charCodeAt(0),
+);
+const PAD = 61;
+
+/**
+ * Writes `src` as base64 (RFC 4648, with `=` padding) into `dst` at `at`, which has room for
+ * 4·⌈n/3⌉ bytes; returns where it ends.
+ */
+export function putBase64(src: Uint8Array, dst: Uint8Array, at: number): number {
+  const n = src.length;
+  const T = BASE64_CODES;
+  let i = 0;
+  for (; i + 2 < n; i += 3) {
+    const v = (src[i] << 16) | (src[i + 1] << 8) | src[i + 2];
+    dst[at] = T[v >>> 18];
+    dst[at + 1] = T[(v >>> 12) & 63];
+    dst[at + 2] = T[(v >>> 6) & 63];
+    dst[at + 3] = T[v & 63];
+    at += 4;
+  }
+  if (i < n) {
+    const two = i + 1 < n;
+    const v = (src[i] << 16) | (two ? src[i + 1] << 8 : 0);
+    dst[at] = T[v >>> 18];
+    dst[at + 1] = T[(v >>> 12) & 63];
+    dst[at + 2] = two ? T[(v >>> 6) & 63] : PAD;
+    dst[at + 3] = PAD;
+    at += 4;
+  }
+  return at;
+}
+
+/**
+ * Node's own base64 encoder, where there is one: ten times quicker than `putBase64` on the tens of
+ * kilobytes of a sample's curves. A browser has none, and uses `putBase64` (the same text).
+ */
+type NativeBuffer = {
+  from(b: ArrayBufferLike, offset: number, length: number): { toString(encoding: 'base64'): string };
+};
+const nativeBuffer = (globalThis as { Buffer?: NativeBuffer }).Buffer;
+
 /** "00" … "99" as character codes, for writing two digits at a time. */
 const DIGIT_PAIRS = new Uint8Array(200);
 for (let i = 0; i < 100; i++) {
@@ -136,6 +180,19 @@ export class JsonBytes {
   text(text: string): this {
     this.room(text.length * 3);
     this.length += encoder.encodeInto(text, this.buf.subarray(this.length)).written;
+    return this;
+  }
+
+  /** The bytes as a JSON string of their base64 (RFC 4648, padded). */
+  base64String(b: Uint8Array): this {
+    const size = 4 * Math.ceil(b.length / 3);
+    this.room(size + 2);
+    this.buf[this.length++] = 34;
+    if (nativeBuffer && size > 0) {
+      const text = nativeBuffer.from(b.buffer, b.byteOffset, b.byteLength).toString('base64');
+      this.length += encoder.encodeInto(text, this.buf.subarray(this.length)).written;
+    } else this.length = putBase64(b, this.buf, this.length);
+    this.buf[this.length++] = 34;
     return this;
   }
 

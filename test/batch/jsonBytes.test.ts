@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { JsonBytes } from '../../shared/jsonBytes.js';
+import { JsonBytes, putBase64 } from '../../shared/jsonBytes.js';
 
 const text = (write: (w: JsonBytes) => void): string => {
   const w = new JsonBytes(4);
@@ -167,5 +167,40 @@ describe('JsonBytes', () => {
     expect([...w.takeLine()]).toEqual([91, 49, 93, 10]);
     w.ascii(',2');
     expect(new TextDecoder().decode(w.take())).toBe('[1],2');
+  });
+
+  // Reference: the test vectors of RFC 4648, section 10.
+  const RFC_4648_VECTORS: [string, string][] = [
+    ['', ''],
+    ['f', 'Zg=='],
+    ['fo', 'Zm8='],
+    ['foo', 'Zm9v'],
+    ['foob', 'Zm9vYg=='],
+    ['fooba', 'Zm9vYmE='],
+    ['foobar', 'Zm9vYmFy'],
+  ];
+
+  it('writes base64 as RFC 4648 does, through its own encoder and through Node’s', () => {
+    for (const [plain, encoded] of RFC_4648_VECTORS) {
+      const bytes = new TextEncoder().encode(plain);
+      const dst = new Uint8Array(encoded.length);
+      expect(putBase64(bytes, dst, 0)).toBe(encoded.length);
+      expect(new TextDecoder().decode(dst)).toBe(encoded);
+      expect(text((w) => w.base64String(bytes))).toBe(`"${encoded}"`);
+    }
+  });
+
+  it('writes any bytes as base64 that Node’s decoder reads back, from any offset into its buffer', () => {
+    fc.assert(
+      fc.property(fc.uint8Array({ maxLength: 300 }), fc.nat(5), (bytes, skip) => {
+        const view = bytes.subarray(Math.min(skip, bytes.length));
+        const dst = new Uint8Array(4 * Math.ceil(view.length / 3));
+        putBase64(view, dst, 0);
+        const encoded = new TextDecoder().decode(dst);
+        expect([...Buffer.from(encoded, 'base64')]).toEqual([...view]);
+        expect(text((w) => w.base64String(view))).toBe(`"${encoded}"`);
+      }),
+      { numRuns: 500 },
+    );
   });
 });

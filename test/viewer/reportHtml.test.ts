@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   assembleReportHtml,
+  curvesForScript,
   CURVES_ID_PREFIX,
   escapeHtml,
   jsonForScript,
@@ -16,6 +17,13 @@ import {
 import type { FitCurves, ReportData } from '../../shared/schema.js';
 import { briefJson, resultTexts } from '../../src/batch/resultJson.js';
 import { fixtureReport, fixtureSample } from './fixtures.js';
+
+/** A value's IEEE 754 binary32 bytes, little-endian. */
+function f32Bytes(v: number): number[] {
+  const view = new DataView(new ArrayBuffer(4));
+  view.setFloat32(0, v, true);
+  return [...new Uint8Array(view.buffer)];
+}
 
 const assets: ReportAssets = {
   appJs: 'window.appLoaded = true;',
@@ -174,23 +182,37 @@ describe('packCurves / unpackCurves', () => {
     expect(unpackCurves(packCurves(odd)).timeNs[7]).toBeCloseTo(odd.timeNs[7], 12);
   });
 
-  it('rounds the model and IRF to 4 significant digits, residuals to 0.01, keeping masked channels as null', () => {
+  it('stores data, model, IRF and residuals as 32-bit floats, masked channels as null, and rounds the autocorrelation', () => {
     const c: FitCurves = {
       ...curves,
       timeNs: [0, 0.1, 0.2],
-      data: [5, 6, 7],
+      data: [5, 6, 16777217],
       model: [null, 1234.56789, 0.00123456],
       irf: [1e-300, 1.00051, 2.33333],
       weightedResiduals: [null, -1.23456, Number.NaN],
       autocorrelation: [1, 0.123456, 0.05, -0.02, 0.01],
     };
     const p = packCurves(c);
-    expect(p.model).toEqual([null, 1235, 0.001235]);
+    // Reference: IEEE 754 binary32 (Math.fround rounds to it): 1234.56789 → 1234.5679 (0x449A522C),
+    // stored little-endian; NaN (0x7FC00000) marks a masked channel. Base64 per RFC 4648.
+    expect(p.model).toBe(
+      Buffer.from([0, 0, 0xc0, 0x7f, 0x2c, 0x52, 0x9a, 0x44, ...f32Bytes(0.00123456)]).toString('base64'),
+    );
+    const back = unpackCurves(p);
+    expect(back.model).toEqual([null, Math.fround(1234.56789), Math.fround(0.00123456)]);
     // A tail far below one count becomes 0, which the page leaves off its log axis.
-    expect(p.irf).toEqual([0, 1.001, 2.333]);
-    expect(p.weightedResiduals).toEqual([null, -1.23, null]);
+    expect(back.irf).toEqual([0, Math.fround(1.00051), Math.fround(2.33333)]);
+    expect(back.weightedResiduals).toEqual([null, Math.fround(-1.23456), null]);
+    // Whole counts are exact up to 2^24; above, to the nearest float (2^24 + 1 → 2^24).
+    expect(back.data).toEqual([5, 6, 16777216]);
     // Half the lags plus one: the page shows the autocorrelation to half the fit range.
     expect(p.autocorrelation).toEqual([1, 0.123, 0.05, -0.02]);
-    expect(p.data).toEqual([5, 6, 7]);
+    expect(back.autocorrelation).toEqual([1, 0.123, 0.05, -0.02]);
+  });
+
+  it('writes the same block as JSON.stringify of packCurves, and an empty IRF as an empty curve', () => {
+    const noIrf: FitCurves = { ...curves, irf: [] };
+    for (const c of [curves, noIrf]) expect(curvesForScript(c)).toBe(JSON.stringify(packCurves(c)));
+    expect(unpackCurves(packCurves(noIrf)).irf).toEqual([]);
   });
 });
