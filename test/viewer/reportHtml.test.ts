@@ -193,8 +193,10 @@ describe('packCurves / unpackCurves', () => {
       autocorrelation: [1, 0.123456, 0.05, -0.02, 0.01],
     };
     const p = packCurves(c);
-    // Reference: IEEE 754 binary32 (Math.fround rounds to it): 1234.56789 → 1234.5679 (0x449A522C),
-    // stored little-endian; NaN (0x7FC00000) marks a masked channel. Base64 per RFC 4648.
+    // Reference: the IEEE 754 binary32 layout, worked out by hand: 1234.56789 rounds to
+    // 1234.56787109375 = (1 + 0x1A522C/2^23)·2^10, bits 0x449A522C (sign 0, exponent 137), stored
+    // little-endian; the quiet NaN 0x7FC00000 (what engines store for NaN, common practice) marks a
+    // masked channel. Base64 per RFC 4648.
     expect(p.model).toBe(
       Buffer.from([0, 0, 0xc0, 0x7f, 0x2c, 0x52, 0x9a, 0x44, ...f32Bytes(0.00123456)]).toString('base64'),
     );
