@@ -7,7 +7,7 @@
  * Stages: on this thread, the CPU time of each step a worker takes for a sample (read, parse, fit,
  * writing its results.json line and its report curves block; `JSON.stringify(fit)` for comparison).
  * They run somewhat slower here than in the CLI's workers, where no buffer is ever detached (see
- * `machineSpeedMsFresh`).
+ * `machineSpeedFresh`).
  * Then the whole CLI: the batch's thread only appends the workers' bytes to results.json (written
  * in manifest order as samples arrive) and report.html (curves blocks as they arrive), and at the end
  * writes the report's head and the tables.
