@@ -12,9 +12,9 @@
  * samples opens quickly; the first sample's curves come before the page script so that it can draw
  * at once, the others after it, parsed while the reader looks at the first. Curves in the report are a
  * display copy: data, model, IRF and residuals as 32-bit floats (7 significant digits; whole counts
- * exact below 2²⁴), in base64, with model and IRF values under 0.001 counts made 0; the
- * autocorrelation to 0.001 and to half the fit range. The batch's results.json keeps the precision
- * described in `curvesJson.ts`.
+ * exact below 2²⁴), in base64, with model and IRF values under 0.001 counts made 0 and the IRF
+ * stored only between its first and last channel above that; the autocorrelation to 0.001 and to
+ * half the fit range. The batch's results.json keeps the precision described in `curvesJson.ts`.
  */
 import { JsonBytes } from './jsonBytes.js';
 import type { FitCurves, ReportData, SampleResult } from './schema.js';
@@ -46,7 +46,14 @@ export interface PackedCurves {
   timeNs: PackedAxis;
   data: FloatCurve;
   model: FloatCurve;
+  /**
+   * The IRF's channels `irfFrom` … `irfFrom` + (stored count − 1); the others of its `irfLength` are
+   * 0. A measured IRF is 0 (or below the display floor) over most of the axis, and three quarters of
+   * a block's bytes were those zeros.
+   */
   irf: FloatCurve;
+  irfFrom: number;
+  irfLength: number;
   weightedResiduals: FloatCurve;
   autocorrelation: number[];
   fitStartIndex: number;
@@ -74,15 +81,20 @@ const LITTLE_ENDIAN = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1;
 let floatScratch = new Float32Array(4096);
 
 /**
- * A curve's values as little-endian 32-bit floats (valid until the next call): NaN for null and
- * non-finite values, 0 for values smaller in magnitude than `zeroBelow`.
+ * Values from `from` to `to` (exclusive) of a curve as little-endian 32-bit floats (valid until the
+ * next call): NaN for null and non-finite values, 0 for values smaller in magnitude than `zeroBelow`.
  */
-function curveFloatBytes(values: ArrayLike<number | null>, zeroBelow: number): Uint8Array {
-  const n = values.length;
+function curveFloatBytes(
+  values: ArrayLike<number | null>,
+  zeroBelow: number,
+  from = 0,
+  to = values.length,
+): Uint8Array {
+  const n = to - from;
   if (floatScratch.length < n) floatScratch = new Float32Array(n);
   const f = floatScratch;
   for (let i = 0; i < n; i++) {
-    const v = values[i];
+    const v = values[from + i];
     f[i] = v === null || !Number.isFinite(v) ? NaN : Math.abs(v) < zeroBelow ? 0 : v;
   }
   const bytes = new Uint8Array(f.buffer, 0, 4 * n);
@@ -99,9 +111,28 @@ function curveFloatBytes(values: ArrayLike<number | null>, zeroBelow: number): U
   return bytes;
 }
 
-function floatCurve(values: ArrayLike<number | null>, zeroBelow = 0): FloatCurve {
-  const quoted = new JsonBytes().base64String(curveFloatBytes(values, zeroBelow)).take();
+function floatCurve(
+  values: ArrayLike<number | null>,
+  zeroBelow = 0,
+  from = 0,
+  to = values.length,
+): FloatCurve {
+  const quoted = new JsonBytes().base64String(curveFloatBytes(values, zeroBelow, from, to)).take();
   return new TextDecoder().decode(quoted.subarray(1, -1));
+}
+
+/**
+ * The channels of an IRF that `curveFloatBytes` would not store as 0, as [first, one past the last]
+ * ([0, 0] when there are none).
+ */
+function irfSpan(irf: ArrayLike<number>): [number, number] {
+  const stored = (v: number) => !(Number.isFinite(v) && (v === 0 || Math.abs(v) < DISPLAY_FLOOR_COUNTS));
+  let from = 0;
+  while (from < irf.length && !stored(irf[from])) from++;
+  if (from === irf.length) return [0, 0];
+  let to = irf.length;
+  while (!stored(irf[to - 1])) to--;
+  return [from, to];
 }
 
 /** The values of a `FloatCurve`, null where it holds NaN. */
@@ -115,6 +146,13 @@ export function readFloatCurve(text: FloatCurve): (number | null)[] {
     const v = view.getFloat32(4 * i, true);
     out[i] = Number.isNaN(v) ? null : v;
   }
+  return out;
+}
+
+/** `length` values, `values` from index `from` on and 0 elsewhere. */
+function spread(values: number[], from: number, length: number): number[] {
+  const out = new Array<number>(length).fill(0);
+  for (let i = 0; i < values.length; i++) out[from + i] = values[i];
   return out;
 }
 
@@ -141,11 +179,14 @@ function autocorrelationShown(c: FitCurves): number {
 
 /** The block's content as an object: what the page reads back from `writePackedCurves`' text. */
 export function packCurves(c: FitCurves): PackedCurves {
+  const [irfFrom, irfTo] = irfSpan(c.irf);
   return {
     timeNs: packAxis(c.timeNs),
     data: floatCurve(c.data),
     model: floatCurve(c.model, DISPLAY_FLOOR_COUNTS),
-    irf: floatCurve(c.irf, DISPLAY_FLOOR_COUNTS),
+    irf: floatCurve(c.irf, DISPLAY_FLOOR_COUNTS, irfFrom, irfTo),
+    irfFrom,
+    irfLength: c.irf.length,
     weightedResiduals: floatCurve(c.weightedResiduals),
     autocorrelation: roundTo(c.autocorrelation.slice(0, autocorrelationShown(c)), 3) as number[],
     fitStartIndex: c.fitStartIndex,
@@ -160,7 +201,7 @@ export function unpackCurves(p: PackedCurves): FitCurves {
     timeNs,
     data: readFloatCurve(p.data) as number[],
     model: readFloatCurve(p.model),
-    irf: readFloatCurve(p.irf) as number[],
+    irf: spread(readFloatCurve(p.irf) as number[], p.irfFrom, p.irfLength),
     weightedResiduals: readFloatCurve(p.weightedResiduals),
     autocorrelation: p.autocorrelation,
     fitStartIndex: p.fitStartIndex,
@@ -274,7 +315,10 @@ export function writePackedCurves(w: JsonBytes, c: FitCurves): JsonBytes {
   else w.ascii(JSON.stringify(axis));
   w.ascii(',"data":').base64String(curveFloatBytes(c.data, 0));
   w.ascii(',"model":').base64String(curveFloatBytes(c.model, DISPLAY_FLOOR_COUNTS));
-  w.ascii(',"irf":').base64String(curveFloatBytes(c.irf, DISPLAY_FLOOR_COUNTS));
+  const [irfFrom, irfTo] = irfSpan(c.irf);
+  w.ascii(',"irf":').base64String(curveFloatBytes(c.irf, DISPLAY_FLOOR_COUNTS, irfFrom, irfTo));
+  w.ascii(',"irfFrom":').exact(irfFrom);
+  w.ascii(',"irfLength":').exact(c.irf.length);
   w.ascii(',"weightedResiduals":').base64String(curveFloatBytes(c.weightedResiduals, 0));
   w.ascii(',"autocorrelation":').fixedArray(c.autocorrelation, 3, autocorrelationShown(c));
   w.ascii(',"fitStartIndex":').exact(c.fitStartIndex);

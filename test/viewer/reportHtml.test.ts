@@ -212,6 +212,17 @@ describe('packCurves / unpackCurves', () => {
     expect(back.autocorrelation).toEqual([1, 0.123, 0.05, -0.02]);
   });
 
+  it('stores the IRF from its first to its last channel above the display floor, zeros around it', () => {
+    const c: FitCurves = { ...curves, irf: [0, 0, 5e-4, 3, 0, 2, 1e-5, 0] };
+    const p = packCurves(c);
+    expect([p.irfFrom, p.irfLength]).toEqual([3, 8]);
+    expect(Buffer.from(p.irf, 'base64').length).toBe(3 * 4);
+    expect(unpackCurves(p).irf).toEqual([0, 0, 0, 3, 0, 2, 0, 0]);
+    const flat = packCurves({ ...curves, irf: [0, 1e-4, 0] });
+    expect([flat.irf, flat.irfLength]).toEqual(['', 3]);
+    expect(unpackCurves(flat).irf).toEqual([0, 0, 0]);
+  });
+
   it('writes the same block as JSON.stringify of packCurves, and an empty IRF as an empty curve', () => {
     const noIrf: FitCurves = { ...curves, irf: [] };
     for (const c of [curves, noIrf]) expect(curvesForScript(c)).toBe(JSON.stringify(packCurves(c)));
