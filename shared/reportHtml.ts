@@ -111,16 +111,6 @@ function curveFloatBytes(
   return bytes;
 }
 
-function floatCurve(
-  values: ArrayLike<number | null>,
-  zeroBelow = 0,
-  from = 0,
-  to = values.length,
-): FloatCurve {
-  const quoted = new JsonBytes().base64String(curveFloatBytes(values, zeroBelow, from, to)).take();
-  return new TextDecoder().decode(quoted.subarray(1, -1));
-}
-
 /**
  * The channels of an IRF that `curveFloatBytes` would not store as 0, as [first, one past the last]
  * ([0, 0] when there are none).
@@ -156,12 +146,6 @@ function spread(values: number[], from: number, length: number): number[] {
   return out;
 }
 
-/** Rounded to `decimals` places (the autocorrelation); null for a non-finite value. */
-function roundTo(values: number[], decimals: number): (number | null)[] {
-  const scale = 10 ** decimals;
-  return values.map((v) => (Number.isFinite(v) ? Math.round(v * scale) / scale : null));
-}
-
 function packAxis(timeNs: number[]): PackedAxis {
   const n = timeNs.length;
   if (n < 2) return timeNs.slice();
@@ -177,21 +161,12 @@ function autocorrelationShown(c: FitCurves): number {
   return Math.min(c.autocorrelation.length, Math.ceil(c.autocorrelation.length / 2) + 1);
 }
 
-/** The block's content as an object: what the page reads back from `writePackedCurves`' text. */
+/**
+ * The block's content as an object, read from `curvesForScript`: one writer makes the format, for
+ * the page and for any other reader.
+ */
 export function packCurves(c: FitCurves): PackedCurves {
-  const [irfFrom, irfTo] = irfSpan(c.irf);
-  return {
-    timeNs: packAxis(c.timeNs),
-    data: floatCurve(c.data),
-    model: floatCurve(c.model, DISPLAY_FLOOR_COUNTS),
-    irf: floatCurve(c.irf, DISPLAY_FLOOR_COUNTS, irfFrom, irfTo),
-    irfFrom,
-    irfLength: c.irf.length,
-    weightedResiduals: floatCurve(c.weightedResiduals),
-    autocorrelation: roundTo(c.autocorrelation.slice(0, autocorrelationShown(c)), 3) as number[],
-    fitStartIndex: c.fitStartIndex,
-    fitEndIndex: c.fitEndIndex,
-  };
+  return JSON.parse(curvesForScript(c)) as PackedCurves;
 }
 
 export function unpackCurves(p: PackedCurves): FitCurves {
@@ -305,8 +280,8 @@ function* summaryJsonPieces(data: ReportData): Generator<string> {
 }
 
 /**
- * Writes a sample's curves block for the page: the JSON of `packCurves(curves)`, written straight
- * from the curves. Numbers, `null` and base64 are all it holds, so it is script-safe as it stands.
+ * Writes a sample's curves block for the page: `PackedCurves` as JSON, written straight from the
+ * curves. Numbers, `null` and base64 are all it holds, so it is script-safe as it stands.
  */
 export function writePackedCurves(w: JsonBytes, c: FitCurves): JsonBytes {
   w.ascii('{"timeNs":');

@@ -326,7 +326,7 @@ export function drawSamplePlots(container: HTMLElement, curves: FitCurves, sampl
   link(decay.plot, residuals.plot);
   link(residuals.plot, decay.plot);
 
-  // The report carries the autocorrelation to half the fit range already (see packCurves).
+  // The report carries the autocorrelation to half the fit range already (see writePackedCurves).
   const dt = curves.timeNs.length > 1 ? curves.timeNs[1] - curves.timeNs[0] : 1;
   const ac = curves.autocorrelation;
   const lag = ac.map((_, j) => j * dt);

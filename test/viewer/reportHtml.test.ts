@@ -223,7 +223,7 @@ describe('packCurves / unpackCurves', () => {
     expect(unpackCurves(flat).irf).toEqual([0, 0, 0]);
   });
 
-  it('writes the same block as JSON.stringify of packCurves, and an empty IRF as an empty curve', () => {
+  it('writes a block that JSON.stringify of what it parses to gives back, and an empty IRF as an empty curve', () => {
     const noIrf: FitCurves = { ...curves, irf: [] };
     for (const c of [curves, noIrf]) expect(curvesForScript(c)).toBe(JSON.stringify(packCurves(c)));
     expect(unpackCurves(packCurves(noIrf)).irf).toEqual([]);
