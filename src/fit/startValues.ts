@@ -1,6 +1,7 @@
 import type { DecayModel } from './decayModel.js';
 import { binCount, binMeans, type ChannelBins } from '../model/reconvolve.js';
-import { choleskySolve, weightedGram } from './lm.js';
+import { choleskySolve } from './lm.js';
+import { weightedGram } from './weightedGram.js';
 
 /**
  * Automatic starting values, so that a user never guesses: the tail's log-slope gives the longest

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { levenbergMarquardt, invertSymmetric, weightedGram, type LmProblem } from '../../src/fit/lm.js';
+import { levenbergMarquardt, invertSymmetric, type LmProblem } from '../../src/fit/lm.js';
+import { weightedGram } from '../../src/fit/weightedGram.js';
 import { createRng } from '../../src/sim/rng.js';
 import { levenbergMarquardt as packageLm } from 'ml-levenberg-marquardt';
 
@@ -155,11 +156,17 @@ describe('weightedGram', () => {
   };
   it.each([
     [1, 7, -1],
+    [1, 5, 0],
     [2, 8, 1],
+    [3, 1, -1],
+    [4, 40, 3],
     [5, 9, -1],
     [6, 101, 4],
     [6, 100, 0],
     [7, 33, 6],
+    [8, 41, 7],
+    [10, 29, 2],
+    [12, 30, -1],
     [14, 50, 13],
   ])('C = %i columns of N = %i points, constant column %i', (C, N, ones) => {
     const rng = createRng(C * 1000 + N);
