@@ -34,11 +34,26 @@ export interface PoolTask {
 }
 
 /**
- * Shared buffers handed back to a worker once its reply has been used (see `WorkerPool.run`). Shared,
- * not transferred: the worker and this thread both see them, and neither ever detaches one.
+ * Shared buffers handed back to a worker once its reply has been used (see `WorkerPool.run`), with the
+ * next task when there is one (one message rather than two). Shared, not transferred: the worker and
+ * this thread both see them, and neither ever detaches one.
  */
-export interface RecycleMessage {
+export interface RecycleMessage<T = unknown> {
   recycle: SharedArrayBuffer[];
+  task?: T;
+}
+
+/** What a pool's worker receives: a task, or buffers handed back (see `RecycleMessage`), with or without one. */
+export type PoolMessage<T> = T | RecycleMessage<T>;
+
+/** The task a pool's message carries, if any, after handing its buffers (if any) to `keep`. */
+export function taskOf<T extends PoolTask>(
+  message: PoolMessage<T>,
+  keep: (buffers: SharedArrayBuffer[]) => void,
+): T | undefined {
+  if (!('recycle' in message)) return message;
+  keep(message.recycle);
+  return message.task;
 }
 
 /**
@@ -91,12 +106,16 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
         const pending: T[] = [];
         let dead = false;
         this.workers.push(w);
-        const feed = () => {
+        // Buffers handed back go with the first task sent, or alone when none is.
+        const feed = (back?: SharedArrayBuffer[]) => {
           while (!this.stopped && pending.length < this.inFlight && queue.length) {
             const task = queue.pop()!;
             pending.push(task);
-            w.postMessage(task);
+            if (back) w.postMessage({ recycle: back, task } satisfies RecycleMessage<T>);
+            else w.postMessage(task);
+            back = undefined;
           }
+          if (back && !this.stopped) w.postMessage({ recycle: back } satisfies RecycleMessage<T>);
         };
         const lost = (why: string) => {
           if (dead || this.stopped) return;
@@ -127,9 +146,7 @@ export class WorkerPool<T extends PoolTask, R extends { id: number }> {
             return finish(err as Error);
           }
           if (outstanding === 0) return finish();
-          // Before the next task, so that the worker has them when it writes its reply.
-          if (back && back.length && !dead) w.postMessage({ recycle: back } satisfies RecycleMessage);
-          feed();
+          if (!dead) feed(back && back.length ? back : undefined);
         });
         w.on('error', (err) => lost(`the worker running it failed: ${err.message}`));
         w.on('exit', (code) => lost(`a worker thread stopped with code ${code}`));

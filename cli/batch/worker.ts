@@ -24,7 +24,7 @@ import {
 } from '../../src/batch/runSample.js';
 import { InputError } from '../../src/errors.js';
 import { decodeText } from '../../src/io/decodeText.js';
-import type { RecycleMessage } from './pool.js';
+import { taskOf, type PoolMessage } from './pool.js';
 import { SpareBuffers, roomFor } from './spareBuffers.js';
 import {
   briefOf,
@@ -210,14 +210,12 @@ function primeCurveWriters(): void {
 }
 primeCurveWriters();
 
-parentPort!.on('message', (message: WorkTask | RecycleMessage) => {
-  if ('recycle' in message) {
-    spare.give(...message.recycle);
-    return;
-  }
-  const results = runTask(message).map(withoutCurves);
+parentPort!.on('message', (message: PoolMessage<WorkTask>) => {
+  const task = taskOf(message, (buffers) => spare.give(...buffers));
+  if (!task) return;
+  const results = runTask(task).map(withoutCurves);
   const reply: WorkReply = {
-    id: message.id,
+    id: task.id,
     results: results.map((r) => {
       // The texts of the result's numbers serve both its line and its brief copy.
       const texts = resultTexts(r);
