@@ -5,87 +5,27 @@
  * written.
  * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
  */
-import { closeSync, fstatSync, openSync, readFileSync, readSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
 import { AxisCache, writeFitCurves } from '../../shared/curvesJson.js';
 import { JsonBytes } from '../../shared/jsonBytes.js';
 import { scriptSafeJson, writePackedCurves } from '../../shared/reportHtml.js';
 import type { FitCurves, SampleResult } from '../../shared/schema.js';
-import { sha256Hex } from '../../src/batch/hash.js';
 import { briefJson, resultTexts, writeSampleResult } from '../../src/batch/resultJson.js';
 import {
   failedSample,
   runGroup,
   runSample,
   type HistogramCache,
-  type InputFile,
   type RunContext,
   type SampleInputs,
 } from '../../src/batch/runSample.js';
-import { InputError } from '../../src/errors.js';
-import { decodeText } from '../../src/io/decodeText.js';
+import { readInput } from './inputFiles.js';
 import { taskOf, type PoolMessage } from './pool.js';
 import { SpareBuffers, roomFor } from './spareBuffers.js';
-import {
-  briefOf,
-  type FileToRead,
-  type MemberTask,
-  type WorkReply,
-  type WorkTask,
-  type WorkerSetup,
-} from './protocol.js';
+import { briefOf, type MemberTask, type WorkReply, type WorkTask, type WorkerSetup } from './protocol.js';
 
 const setup = workerData as WorkerSetup;
 const cache: HistogramCache = new Map();
-
-/**
- * The buffer every input file is read into, grown as needed. A fresh buffer per file (~100 kB for a
- * 4096-channel histogram) was handed back to the system when collected and faulted in again for the
- * next file, a cost of its own on a virtual machine. Its bytes are used only until the file's text
- * and hash are made.
- */
-let readBuffer = Buffer.allocUnsafe(1 << 17);
-
-/** The whole file, in `readBuffer` (valid until the next read). */
-function readBytes(path: string): Uint8Array {
-  const fd = openSync(path, 'r');
-  try {
-    const stat = fstatSync(fd);
-    // A pipe or device has no size to go by: read until its end, in a buffer of its own.
-    if (!stat.isFile()) return readFileSync(fd);
-    const size = stat.size;
-    if (readBuffer.length < size) readBuffer = Buffer.allocUnsafe(size + (size >> 3));
-    // Up to the size read (as readFileSync does): a regular file needs no read that finds its end.
-    let n = 0;
-    while (n < size) {
-      const got = readSync(fd, readBuffer, n, size - n, null);
-      if (got === 0) break;
-      n += got;
-    }
-    return readBuffer.subarray(0, n);
-  } finally {
-    closeSync(fd);
-  }
-}
-
-function readInput(f: FileToRead): InputFile {
-  let bytes: Uint8Array;
-  try {
-    bytes = readBytes(f.absolutePath);
-  } catch (err) {
-    const code = (err as NodeJS.ErrnoException).code;
-    const why =
-      code === 'ENOENT'
-        ? 'not found'
-        : code === 'EISDIR'
-          ? 'is a directory'
-          : code === 'EACCES'
-            ? 'cannot be read (permission denied)'
-            : `cannot be read (${code ?? String(err)})`;
-    throw new InputError(`${f.role} file '${f.written}' ${why}`, f.where);
-  }
-  return { text: decodeText(bytes, f.written), sha256: sha256Hex(bytes) };
-}
 
 function readInputs(m: MemberTask): SampleInputs {
   const inputs: Partial<SampleInputs> = {};
