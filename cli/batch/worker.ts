@@ -3,7 +3,8 @@
  * and sends back the result as UTF-8 JSON (written here, in parallel, rather than on the main thread,
  * with compact curves: `writeSampleResult`), with the sample's curves block for the report when one is
  * written.
- * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few.
+ * Parsed IRFs are kept per worker, keyed by path and content hash, since most batches share a few;
+ * so are the texts of files read again unchanged (`inputFiles.ts`).
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { AxisCache, writeFitCurves } from '../../shared/curvesJson.js';
