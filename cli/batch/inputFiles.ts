@@ -1,14 +1,13 @@
+/**
+ * How a batch's worker reads a sample's input files: the bytes into one buffer kept for every file,
+ * then the text and its SHA-256, and the unchanged files it read lately without reading them again.
+ */
 import { closeSync, fstatSync, openSync, readFileSync, readSync, statSync, type Stats } from 'node:fs';
 import { sha256Hex } from '../../src/batch/hash.js';
 import type { InputFile } from '../../src/batch/runSample.js';
 import { InputError } from '../../src/errors.js';
 import { decodeText } from '../../src/io/decodeText.js';
 import type { FileToRead } from './protocol.js';
-
-/**
- * How a batch's worker reads a sample's input files: the bytes into one buffer kept for every file,
- * then the text and its SHA-256, and the unchanged files it read lately without reading them again.
- */
 
 /**
  * The buffer every input file is read into, grown as needed. A fresh buffer per file (~100 kB for a
