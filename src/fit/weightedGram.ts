@@ -9,7 +9,7 @@
  * projections); every later pair of columns goes in one pass against the first three and itself (9
  * products, 2 projections), and against any further earlier columns three at a time. The six
  * columns of a 2-exponential fit with a background take two passes; pairs of columns, four sums
- * per pass, took eleven and twice as long (measured 75 → 42 µs for 6 columns of 3978 points, and
+ * per pass, took twelve and twice as long (measured 75 → 42 µs for 6 columns of 3978 points, and
  * 30–50 % less for 4 to 14 columns).
  *
  * A missing column of a block (fewer columns than the block holds) reads the values of a real column
