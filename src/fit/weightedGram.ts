@@ -29,7 +29,7 @@ export function weightedGram(
   proj: Float64Array,
   ones = -1,
 ): void {
-  if (gramColumns.length < C + 2) gramColumns = new Int32Array(C + 2);
+  if (gramColumns.length < C) gramColumns = new Int32Array(C);
   const idx = gramColumns;
   let K = 0;
   for (let a = 0; a < C; a++) if (a !== ones) idx[K++] = a;
